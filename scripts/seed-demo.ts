@@ -1,0 +1,15 @@
+/** Loads the demo studio into an empty database (rows, then frames rendered by Fillcard itself). */
+import knexFactory from 'knex';
+import settings from '../knexfile';
+import { seed } from '../seeds/01_demo_studio';
+import { seedDemoFrames } from './lib/demo-frames';
+
+const knex = knexFactory(settings);
+try {
+  await seed(knex);
+  await seedDemoFrames(knex);
+  console.log('[fillcard] demo studio loaded');
+} finally {
+  await knex.destroy();
+}
+process.exit(0);

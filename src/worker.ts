@@ -1,0 +1,42 @@
+/**
+ * Fillcard's background worker: a separate process doing the queue's jobs. Run more of them to go
+ * faster; a job whose worker dies expires and is taken over by another.
+ */
+import { boss, QUEUES, stopBoss } from './lib/server/jobs';
+import { closeDb } from './lib/server/db';
+import { sweepOutbox } from './lib/server/mail';
+import { config } from './lib/server/config';
+import { mailSend } from './jobs/mail-send';
+import { workerJobs } from './jobs/index';
+
+config(); // stop at once on a bad configuration
+const concurrency = Math.max(1, Number(process.env.WORKER_CONCURRENCY ?? 2));
+
+const b = await boss({ worker: true });
+await b.work(QUEUES.mailSend.name, { batchSize: 1, pollingIntervalSeconds: 1 }, mailSend);
+for (const job of workerJobs) {
+  // pg-boss 10 runs one handler per `work` call; several calls give several concurrent jobs.
+  for (let i = 0; i < (job.concurrency ?? concurrency); i++) {
+    await b.work(job.queue.name, { batchSize: 1, pollingIntervalSeconds: 1 }, job.handler as never);
+  }
+}
+
+// Rows written but never handed to the queue (a crash between commit and send) are picked up here.
+const sweep = setInterval(() => {
+  sweepOutbox().catch((e) => console.error('[fillcard] outbox sweep failed:', e));
+  for (const job of workerJobs) job.sweep?.().catch((e) => console.error(`[fillcard] ${job.queue.name} sweep failed:`, e));
+}, 15_000);
+
+console.log(`[fillcard] worker ready (concurrency ${concurrency})`);
+
+let stopping = false;
+async function stop() {
+  if (stopping) return;
+  stopping = true;
+  clearInterval(sweep);
+  await stopBoss().catch(() => null);
+  await closeDb().catch(() => null);
+  process.exit(0);
+}
+process.on('SIGTERM', stop);
+process.on('SIGINT', stop);
