@@ -12,6 +12,7 @@
  * with no power of its own, so only distance sets its level; power enters only between flashes.
  */
 import { z } from 'zod';
+import { ev100 } from './exposure';
 
 export const SOURCE_KINDS = ['flash', 'bounce_board', 'reflector', 'window'] as const;
 export type SourceKind = (typeof SOURCE_KINDS)[number];
@@ -226,31 +227,10 @@ export function keyToFillFromNotes(notes: LightNotes): KeyToFill | null {
 // ---------------------------------------------------------------------------------------------
 // Camera settings
 
-/** Exposure value of the settings at ISO 100: EV = log2(N²/t) (APEX). */
-export function ev100(fNumber: number, shutterS: number): number {
-  assertPositive(fNumber, 'fNumber');
-  assertPositive(shutterS, 'shutterS');
-  return Math.log2((fNumber * fNumber) / shutterS);
-}
-
-/** The settings' EV when both aperture and shutter are known, else null. */
+/** The settings' EV at ISO 100, log2(N²/t), when both aperture and shutter are known, else null. */
 export function cameraEv100(camera: CameraSettings | null | undefined): number | null {
   if (!camera?.fNumber || !camera.shutterS) return null;
   return ev100(camera.fNumber, camera.shutterS);
-}
-
-/** "1/250 s", "0.5 s" → "1/2 s", "2 s". */
-export function formatShutter(seconds: number): string {
-  if (seconds >= 1) return `${trimNumber(seconds, 1)} s`;
-  const denominator = 1 / seconds;
-  // Marked speeds such as 1/3 s are stored as 0.333…; round to the marking.
-  return Math.abs(denominator - Math.round(denominator)) < 0.05 || denominator > 10
-    ? `1/${Math.round(denominator)} s`
-    : `${trimNumber(seconds, 2)} s`;
-}
-
-export function formatAperture(fNumber: number): string {
-  return `f/${trimNumber(fNumber, 1)}`;
 }
 
 export function formatIso(iso: number): string {

@@ -1,0 +1,78 @@
+import { describe, expect, it } from 'vitest';
+import { renderToString } from 'react-dom/server';
+import LightNotesEditor, { SAFETY_CAUTION, SIMPLIFICATION } from '@/components/light/LightNotesEditor';
+import { distanceStops, type LightNotes } from '@/lib/light';
+
+/** Text as a reader sees it: tags out, the entities React writes decoded. */
+function visibleText(html: string): string {
+  return html
+    .replace(/<[^>]+>/g, ' ')
+    .replace(/&#x27;/g, "'")
+    .replace(/&quot;/g, '"')
+    .replace(/&amp;/g, '&')
+    .replace(/\s+/g, ' ');
+}
+
+// Two bounce boards at the distances of a small-studio setup (practitioner's account): one at
+// 14 in (0.3556 m) and one at 2 ft (0.6096 m) from the subject. Here the nearer board is the key,
+// so key-to-fill is +1.56 stops by distance alone, a ratio of 2^1.5552 = 2.94:1.
+const notes: LightNotes = {
+  room: { widthM: 2, depthM: 4 },
+  subject: { x: 1, y: 2.5 },
+  sources: [
+    { id: 'k', kind: 'bounce_board', label: 'Near board', x: 1 - 0.3556, y: 2.5, aimsAt: 'subject' },
+    { id: 'f', kind: 'bounce_board', label: 'Far board', x: 1 + 0.6096, y: 2.5, aimsAt: 'subject' },
+    { id: 'fl', kind: 'flash', label: 'Bounced flash', power: 4, x: 1, y: 3.6, aimsAt: 'near board', modifier: 'bare' },
+  ],
+  keyId: 'k',
+  fillId: 'f',
+};
+
+describe('LightNotesEditor renders on the server', () => {
+  it('shows the computed key-to-fill in stops and as a ratio', () => {
+    expect(distanceStops(0.6096, 0.3556)).toBeCloseTo(1.5552, 4);
+    const text = visibleText(
+      renderToString(<LightNotesEditor shootId="shoot-1" initial={notes} cameraFromExif={null} canEdit={true} />),
+    );
+    expect(text).toContain('Key to fill: 1.56 stops · 2.94:1');
+    // Each source's distance and level against the key.
+    expect(text).toContain('0.36 m');
+    expect(text).toContain('0.61 m');
+    expect(text).toContain('−1.56 stops');
+  });
+
+  it('states the simplification and the stand and mains caution', () => {
+    const text = visibleText(renderToString(<LightNotesEditor shootId="s" initial={notes} cameraFromExif={null} canEdit={true} />));
+    expect(text).toContain(SIMPLIFICATION);
+    expect(text).toContain(SAFETY_CAUTION);
+    expect(SAFETY_CAUTION).toMatch(/sandbags/);
+    expect(SAFETY_CAUTION).toMatch(/electrical codes/);
+  });
+
+  it('labels the plan and each glyph for assistive technology', () => {
+    const html = renderToString(<LightNotesEditor shootId="s" initial={notes} cameraFromExif={null} canEdit={true} />);
+    expect(html).toMatch(/<title id="[^"]+">Lighting plan<\/title>/);
+    expect(html).toMatch(/<desc id="[^"]+">Top-down plan of a room 2 m wide and 4 m deep/);
+    expect(visibleText(html.replace(/aria-label="([^"]*)"/g, '>$1<'))).toContain(
+      'Key: bounce board, "Near board", 0.36 m from the subject',
+    );
+  });
+
+  it('prefills the camera from EXIF and shows its EV', () => {
+    // f/8 at 1/250 s: EV = log2(64 × 250) = 13.97 (APEX; Wikipedia "Exposure value" lists 13.966).
+    const text = visibleText(
+      renderToString(
+        <LightNotesEditor shootId="s" initial={null} cameraFromExif={{ shutterS: 1 / 250, fNumber: 8, iso: 100, focalLengthMm: 85 }} canEdit={true} />,
+      ),
+    );
+    expect(text).toContain('EV 14.0');
+    expect(text).toContain('at ISO 100 for f/8, 1/250 s (shot at ISO 100), 85 mm');
+    expect(text).toContain('Filled in from the most common settings in the shoot’s EXIF');
+  });
+
+  it('is read only without edit rights: no save button, controls disabled', () => {
+    const html = renderToString(<LightNotesEditor shootId="s" initial={notes} cameraFromExif={null} canEdit={false} />);
+    expect(html).not.toContain('Save light notes');
+    expect(html).toMatch(/<fieldset disabled=""/);
+  });
+});
