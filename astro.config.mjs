@@ -4,12 +4,20 @@ import node from '@astrojs/node';
 import react from '@astrojs/react';
 import tailwind from '@astrojs/tailwind';
 
+// The hosts this app answers as. Astro builds request URLs (and its origin check) from the Host header
+// only when it matches one of these; PUBLIC_ORIGIN at build time adds the production host.
+const allowedDomains = [{ hostname: '127.0.0.1' }, { hostname: 'localhost' }];
+if (process.env.PUBLIC_ORIGIN) {
+  const { hostname, protocol } = new URL(process.env.PUBLIC_ORIGIN);
+  if (!allowedDomains.some((d) => d.hostname === hostname)) allowedDomains.push({ hostname, protocol: protocol.replace(':', '') });
+}
+
 export default defineConfig({
   output: 'server',
   adapter: node({ mode: 'standalone' }),
   integrations: [react(), tailwind({ applyBaseStyles: false })],
   // Astro refuses cross-site form posts (Origin header check); keep it on.
-  security: { checkOrigin: true },
+  security: { checkOrigin: true, allowedDomains },
   server: { host: '127.0.0.1', port: Number(process.env.PORT ?? 4321) },
   vite: {
     ssr: { external: ['sharp', 'pg-boss', '@node-rs/argon2', 'knex', 'pg', 'nodemailer', 'archiver'] },

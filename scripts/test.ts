@@ -48,6 +48,13 @@ async function main(): Promise<number> {
   startApp(children, env, path.join(artifacts, 'app.log'));
   await waitForPort(ports.app, 'The app');
 
+  if (args.includes('--serve')) {
+    // Keeps the test stack up for debugging and screenshots; Ctrl-C stops it.
+    log(`serving the test stack: ${env.PUBLIC_ORIGIN} (mail ${env.MAILDEV_URL}); env written to ${work}/env`);
+    const { writeFileSync } = await import('node:fs');
+    writeFileSync(path.join(work, 'env'), Object.entries(env).map(([k, v]) => `export ${k}='${v}'`).join('\n') + '\n');
+    await new Promise(() => {});
+  }
   let failed = 0;
   if (only !== '--e2e') failed += run(path.join(root, 'node_modules/.bin/vitest'), ['run', ...passthrough], env) ? 1 : 0;
   if (only !== '--unit') failed += run(path.join(root, 'node_modules/.bin/playwright'), ['test', ...passthrough], env) ? 1 : 0;

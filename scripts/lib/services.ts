@@ -194,6 +194,7 @@ export async function startMailCatcher(children: Children, smtp: number, web: nu
 }
 
 export async function startPaymentStandIn(children: Children, env: NodeJS.ProcessEnv, logFile?: string) {
+  if (!existsSync(path.join(root, 'scripts/stand-ins/payments.ts'))) return log('payment stand-in not present yet: skipped');
   children.spawn('payment stand-in', tsx, [path.join(root, 'scripts/stand-ins/payments.ts')], { env, logFile });
   await waitForPort(Number(env.PAYMENTS_PORT), 'The payment stand-in');
 }

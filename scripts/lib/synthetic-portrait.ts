@@ -1,0 +1,228 @@
+/**
+ * Photo-like portrait JPEGs for tests, benchmarks and demo data: a soft backdrop, a head and
+ * shoulders lit from one side, hair with fine texture, and sensor grain, so file sizes, sharpness
+ * and perceptual hashes behave like a real frame's. Deterministic per seed. Optional EXIF is
+ * written by ExifTool, so the tags are laid out the way real tools lay them out.
+ */
+import { execFile } from 'node:child_process';
+import { mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
+import os from 'node:os';
+import path from 'node:path';
+import { promisify } from 'node:util';
+import sharp from 'sharp';
+
+const run = promisify(execFile);
+
+export interface SyntheticPortraitOptions {
+  width: number;
+  height: number;
+  seed: number;
+  /**
+   * ExifTool tag names and values, e.g. { ExposureTime: '1/250', FNumber: 5.6, Orientation: 6 }.
+   * Numbers are written as raw values (ExifTool's `TAG#=`), strings as ExifTool reads them.
+   */
+  exif?: Record<string, string | number>;
+  quality?: number;
+}
+
+/** mulberry32: small, fast, and the same sequence for the same seed everywhere. */
+function prng(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+type Rgb = [number, number, number];
+
+const BACKDROPS: Array<[Rgb, Rgb]> = [
+  [[86, 98, 112], [34, 40, 48]], // slate
+  [[190, 182, 168], [120, 112, 100]], // warm paper
+  [[60, 60, 62], [18, 18, 20]], // charcoal
+  [[170, 190, 200], [90, 110, 125]], // pale blue
+  [[140, 120, 100], [60, 48, 40]], // brown canvas
+  [[235, 235, 232], [200, 200, 196]], // high key white
+];
+const SKIN: Rgb[] = [
+  [238, 200, 176],
+  [224, 172, 140],
+  [198, 142, 108],
+  [160, 108, 76],
+  [120, 78, 52],
+  [88, 56, 38],
+];
+const CLOTHES: Rgb[] = [
+  [28, 32, 48],
+  [110, 30, 38],
+  [220, 214, 200],
+  [40, 70, 60],
+  [30, 30, 30],
+  [150, 120, 90],
+];
+const HAIR: Rgb[] = [
+  [30, 22, 18],
+  [70, 46, 30],
+  [140, 100, 60],
+  [200, 170, 120],
+  [20, 20, 22],
+];
+
+function pick<T>(list: T[], r: () => number): T {
+  return list[Math.floor(r() * list.length)]!;
+}
+
+function smoothstep(e0: number, e1: number, x: number): number {
+  const t = Math.min(1, Math.max(0, (x - e0) / (e1 - e0)));
+  return t * t * (3 - 2 * t);
+}
+
+function mix(a: number, b: number, t: number): number {
+  return a + (b - a) * t;
+}
+
+/** Coverage (0..1) of an ellipse, anti-aliased over `soft` normalised units at its rim. */
+function ellipse(x: number, y: number, cx: number, cy: number, rx: number, ry: number, soft: number): number {
+  const d = Math.sqrt(((x - cx) / rx) ** 2 + ((y - cy) / ry) ** 2);
+  return 1 - smoothstep(1 - soft, 1 + soft, d);
+}
+
+/** The scene at a quarter of the final size: smooth shapes that upscale without jaggies. */
+function renderScene(w: number, h: number, r: () => number): Buffer {
+  const [bgLight, bgDark] = pick(BACKDROPS, r);
+  const skin = pick(SKIN, r);
+  const cloth = pick(CLOTHES, r);
+  const hair = pick(HAIR, r);
+  const gradient = Math.floor(r() * 3); // 0 vertical, 1 spot, 2 diagonal
+  const spotX = 0.25 + r() * 0.5;
+  const spotY = 0.2 + r() * 0.4;
+  const keyFromLeft = r() < 0.5;
+  const unit = Math.min(w, h);
+  const headR = unit * (0.1 + r() * 0.06);
+  const cx = w * (0.28 + r() * 0.44);
+  const cy = h * (0.3 + r() * 0.14);
+  const tilt = (r() - 0.5) * 0.25;
+  const shoulderW = headR * (2.6 + r() * 0.8);
+  const shoulderY = cy + headR * (2.1 + r() * 0.3);
+  const hairLen = 0.4 + r() * 0.9;
+  const stripe = 2 + r() * 2;
+  const out = Buffer.alloc(w * h * 3);
+  for (let y = 0; y < h; y++) {
+    const ny = y / h;
+    for (let x = 0; x < w; x++) {
+      const nx = x / w;
+      let t: number;
+      if (gradient === 0) t = ny;
+      else if (gradient === 1) t = Math.min(1, Math.hypot(nx - spotX, (ny - spotY) * (h / w)) * 1.4);
+      else t = (nx + ny) / 2;
+      let R = mix(bgLight[0], bgDark[0], t);
+      let G = mix(bgLight[1], bgDark[1], t);
+      let B = mix(bgLight[2], bgDark[2], t);
+      // Shoulders and chest: a wide ellipse cut off by the frame's bottom edge.
+      const body = ellipse(x, y, cx, shoulderY + headR * 2.2, shoulderW, headR * 2.6, 0.02);
+      if (body > 0) {
+        const fold = 0.85 + 0.15 * Math.sin((x - cx) / (headR * 0.35) + y / (headR * 0.9));
+        const side = keyFromLeft ? 1 - (x - cx + shoulderW) / (2 * shoulderW) : (x - cx + shoulderW) / (2 * shoulderW);
+        const light = fold * (0.65 + 0.45 * Math.min(1, Math.max(0, side)));
+        R = mix(R, cloth[0] * light, body);
+        G = mix(G, cloth[1] * light, body);
+        B = mix(B, cloth[2] * light, body);
+      }
+      // Neck, then head: rotated slightly, shaded from the key side.
+      const neck = ellipse(x, y, cx, cy + headR * 1.3, headR * 0.42, headR * 0.8, 0.04);
+      const dx = x - cx;
+      const dy = y - cy;
+      const rx = dx * Math.cos(tilt) + dy * Math.sin(tilt);
+      const ry = -dx * Math.sin(tilt) + dy * Math.cos(tilt);
+      const head = Math.max(neck, ellipse(rx, ry, 0, 0, headR * 0.78, headR, 0.03));
+      if (head > 0) {
+        const side = keyFromLeft ? -rx / headR : rx / headR;
+        const light = 0.72 + 0.32 * smoothstep(-1, 1, side) - 0.12 * smoothstep(0.4, 1.2, ry / headR);
+        R = mix(R, Math.min(255, skin[0] * light), head);
+        G = mix(G, Math.min(255, skin[1] * light), head);
+        B = mix(B, Math.min(255, skin[2] * light), head);
+        // Eyes and mouth as soft dark marks, so the face has structure for focus finding.
+        const eyeY = -headR * 0.1;
+        const eye =
+          ellipse(rx, ry, -headR * 0.3, eyeY, headR * 0.11, headR * 0.06, 0.2) +
+          ellipse(rx, ry, headR * 0.3, eyeY, headR * 0.11, headR * 0.06, 0.2);
+        const mouth = ellipse(rx, ry, 0, headR * 0.45, headR * 0.22, headR * 0.05, 0.25);
+        const dark = Math.min(1, eye * 0.8 + mouth * 0.45) * head;
+        R = mix(R, 40, dark);
+        G = mix(G, 26, dark);
+        B = mix(B, 24, dark);
+      }
+      // Hair: a cap over the crown falling to the sides, with fine strands.
+      const hairCap = ellipse(rx, ry + headR * 0.15, 0, -headR * 0.1, headR * 0.9, headR * (0.85 + hairLen * 0.5), 0.03);
+      const face = ellipse(rx, ry, 0, headR * 0.22, headR * 0.66, headR * 0.85, 0.05);
+      const hairCover = Math.max(0, hairCap - face) * (ry < headR * hairLen ? 1 : 0);
+      if (hairCover > 0) {
+        const strands = 0.75 + 0.25 * Math.sin(rx * stripe + Math.sin(ry * 0.2) * 3);
+        R = mix(R, hair[0] * strands, hairCover);
+        G = mix(G, hair[1] * strands, hairCover);
+        B = mix(B, hair[2] * strands, hairCover);
+      }
+      const o = (y * w + x) * 3;
+      out[o] = R;
+      out[o + 1] = G;
+      out[o + 2] = B;
+    }
+  }
+  return out;
+}
+
+const GRAIN_TILE = 509; // prime, so the repeat never lines up with 8-pixel JPEG blocks
+
+/** Luminance grain centred on mid-grey, for an overlay blend (mid-grey leaves pixels unchanged). */
+function grainTile(r: () => number, strength: number): Buffer {
+  const out = Buffer.alloc(GRAIN_TILE * GRAIN_TILE * 3);
+  for (let i = 0; i < GRAIN_TILE * GRAIN_TILE; i++) {
+    const n = (r() + r() + r() - 1.5) * strength; // roughly Gaussian
+    const v = Math.max(0, Math.min(255, Math.round(128 + n)));
+    out[i * 3] = v;
+    out[i * 3 + 1] = v;
+    out[i * 3 + 2] = v;
+  }
+  return out;
+}
+
+export async function syntheticPortrait(opts: SyntheticPortraitOptions): Promise<Buffer> {
+  const { width, height, seed } = opts;
+  if (!Number.isInteger(width) || !Number.isInteger(height) || width < 16 || height < 16) {
+    throw new RangeError(`synthetic portrait needs whole-number sides of at least 16 px, got ${width}×${height}`);
+  }
+  const r = prng(seed);
+  const bw = Math.max(16, Math.round(width / 4));
+  const bh = Math.max(16, Math.round(height / 4));
+  const scene = renderScene(bw, bh, r);
+  const grain = grainTile(r, 22);
+  let jpeg = await sharp(scene, { raw: { width: bw, height: bh, channels: 3 } })
+    .resize(width, height, { fit: 'fill', kernel: 'cubic' })
+    .composite([{ input: grain, raw: { width: GRAIN_TILE, height: GRAIN_TILE, channels: 3 }, tile: true, blend: 'overlay' }])
+    .jpeg({ quality: opts.quality ?? 90 })
+    .toBuffer();
+  if (opts.exif && Object.keys(opts.exif).length > 0) jpeg = await writeExif(jpeg, opts.exif);
+  return jpeg;
+}
+
+/** Writes tags with ExifTool through a temporary file; the file is removed afterwards. */
+export async function writeExif(jpeg: Buffer, tags: Record<string, string | number>): Promise<Buffer> {
+  const dir = await mkdtemp(path.join(os.tmpdir(), 'fillcard-exif-'));
+  const file = path.join(dir, 'frame.jpg');
+  try {
+    await writeFile(file, jpeg);
+    const args = ['-overwrite_original', '-q'];
+    for (const [tag, value] of Object.entries(tags)) {
+      if (!/^[A-Za-z0-9:_-]+$/.test(tag)) throw new RangeError(`not an ExifTool tag name: ${tag}`);
+      args.push(typeof value === 'number' ? `-${tag}#=${value}` : `-${tag}=${value}`);
+    }
+    args.push(file);
+    await run('exiftool', args);
+    return await readFile(file);
+  } finally {
+    await rm(dir, { recursive: true, force: true });
+  }
+}
