@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { renderToString } from 'react-dom/server';
 import LightNotesEditor, { SAFETY_CAUTION, SIMPLIFICATION } from '@/components/light/LightNotesEditor';
+import ShootInsights, { type InsightFrame } from '@/components/insights/ShootInsights';
 import { distanceStops, type LightNotes } from '@/lib/light';
 
 /** Text as a reader sees it: tags out, the entities React writes decoded. */
@@ -74,5 +75,53 @@ describe('LightNotesEditor renders on the server', () => {
     const html = renderToString(<LightNotesEditor shootId="s" initial={notes} cameraFromExif={null} canEdit={false} />);
     expect(html).not.toContain('Save light notes');
     expect(html).toMatch(/<fieldset disabled=""/);
+  });
+});
+
+// The insights island shares this file: both are render checks of the shoot's light and settings views.
+describe('ShootInsights renders on the server', () => {
+  const base: Omit<InsightFrame, 'id' | 'name'> = {
+    thumbUrl: null,
+    exposureTimeS: 1 / 250,
+    fNumber: 5.6,
+    iso: 100,
+    focalLengthMm: 85,
+    takenAt: '2031-05-01T14:03:10+02:00',
+    ev100: 12.94,
+    meanLuminance: 0.2,
+    clippedShare: 0,
+    sharpness: 10,
+    phash: null,
+  };
+  // Luminance 0.2, 0.2, 0.1: median 0.2, so c is log2(0.1 / 0.2) = 1.0 stop darker.
+  // c also has 4 % clipped (over the 2 % limit); b at 1/125 s, f/8 shows up in the charts.
+  const frames: InsightFrame[] = [
+    { ...base, id: 'a', name: 'sitting-001.jpg' },
+    { ...base, id: 'b', name: 'sitting-002.jpg', exposureTimeS: 1 / 125, fNumber: 8, takenAt: '2031-05-01T14:05:00+02:00' },
+    { ...base, id: 'c', name: 'sitting-003.jpg', thumbUrl: '/t/c.jpg', meanLuminance: 0.1, clippedShare: 0.04 },
+  ];
+
+  it('lists the hints in plain words with links to the frames', () => {
+    const html = renderToString(<ShootInsights shootId="s1" frames={frames} frameHrefBase="/studio/shoots/s1/frames" />);
+    const text = visibleText(html);
+    expect(text).toContain("1.0 stop darker than the shoot's middle frame");
+    expect(text).toContain('4% of pixels clipped');
+    expect(html).toContain('href="/studio/shoots/s1/frames#frame-c"');
+    expect(html).toContain('src="/t/c.jpg"');
+  });
+
+  it('tabulates the settings with plain labels and the per-minute counts', () => {
+    const text = visibleText(renderToString(<ShootInsights shootId="s1" frames={frames} frameHrefBase="/f" />));
+    // Two frames at 1/250 s and one at 1/125 s; minutes 14:03 (2), 14:04 (0), 14:05 (1).
+    expect(text).toContain('1/125 s 1 ');
+    expect(text).toContain('1/250 s 2 ');
+    expect(text).toContain('f/5.6 2 ');
+    expect(text).toContain('14:03 2 14:04 0 14:05 1');
+    expect(text).toContain('most used: 1/250 s · f/5.6 · ISO 100 · 85 mm');
+  });
+
+  it('shows an empty state with no frames', () => {
+    const text = visibleText(renderToString(<ShootInsights shootId="s1" frames={[]} frameHrefBase="/f" />));
+    expect(text).toContain('No frames are ready yet');
   });
 });
