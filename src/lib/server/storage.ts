@@ -106,7 +106,7 @@ export async function listKeys(prefix: string): Promise<string[]> {
 }
 
 /** A presigned GET, optionally with a download file name. */
-export async function presignGet(key: string, opts: { expiresIn?: number; downloadName?: string; contentType?: string } = {}) {
+export async function presignGet(key: string, opts: { expiresIn?: number; downloadName?: string; contentType?: string; signingDate?: Date } = {}) {
   return getSignedUrl(
     signer(),
     new GetObjectCommand({
@@ -115,7 +115,7 @@ export async function presignGet(key: string, opts: { expiresIn?: number; downlo
       ResponseContentDisposition: opts.downloadName ? contentDisposition(opts.downloadName) : undefined,
       ResponseContentType: opts.contentType,
     }),
-    { expiresIn: opts.expiresIn ?? 300 },
+    { expiresIn: opts.expiresIn ?? 300, signingDate: opts.signingDate },
   );
 }
 
