@@ -201,7 +201,8 @@ describe('payment stand-in with the official stripe SDK', () => {
   let standIn: StandIn;
   let sdk: Stripe;
   let stateDir: string;
-  const savedEnv = { ...process.env };
+  const touched = ['STRIPE_API_BASE', 'STRIPE_SECRET_KEY', 'STRIPE_WEBHOOK_SECRET'] as const;
+  const savedEnv = Object.fromEntries(touched.map((k) => [k, process.env[k]]));
 
   const order = (orderId: string) => {
     const price = priceExtras({ picks: 12, allowance: 10, unitPriceMinor: 2500, taxRateBp: 1900, taxMode: 'exclusive' });
@@ -261,7 +262,10 @@ describe('payment stand-in with the official stripe SDK', () => {
     await standIn?.stop();
     await receiver.stop();
     rmSync(stateDir, { recursive: true, force: true });
-    process.env = savedEnv;
+    for (const k of touched) {
+      if (savedEnv[k] === undefined) delete process.env[k];
+      else process.env[k] = savedEnv[k];
+    }
   });
 
   it('answers its health check', async () => {
@@ -430,6 +434,7 @@ describe('payment stand-in with the official stripe SDK', () => {
 
   it('a signature made with another secret, a changed body or no header is refused', async () => {
     const [delivery] = receiver.eventsOf(paidSessionId, 'checkout.session.completed');
+    expect(delivery).toBeDefined();
     expect(() => Stripe.webhooks.constructEvent(delivery.body, delivery.signature!, 'whsec_some_other_secret')).toThrow(
       Stripe.errors.StripeSignatureVerificationError,
     );
