@@ -787,7 +787,7 @@ ${rows}
 </tbody>
 <tfoot><tr><td colspan="2">Total</td><td class="num" data-total>${escapeHtml(formatMoney(s.amount_total, s.currency))}</td></tr></tfoot>
 </table>`;
-  const who = s.customer_email ? `<p class="muted">Receipt to ${escapeHtml(s.customer_email)}</p>` : '';
+  const who = s.customer_email ? `<p class="muted">Paying as ${escapeHtml(s.customer_email)}</p>` : '';
   if (s.status === 'open') {
     const expires = new Date(s.expires_at * 1000).toUTCString();
     return page(
