@@ -101,12 +101,13 @@ function renderScene(w: number, h: number, r: () => number): Buffer {
   const spotY = 0.2 + r() * 0.4;
   const keyFromLeft = r() < 0.5;
   const unit = Math.min(w, h);
-  const headR = unit * (0.1 + r() * 0.06);
-  const cx = w * (0.28 + r() * 0.44);
-  const cy = h * (0.3 + r() * 0.14);
+  const headR = unit * (0.12 + r() * 0.05);
+  const cx = w * (0.3 + r() * 0.4);
+  const cy = h * (0.28 + r() * 0.12);
   const tilt = (r() - 0.5) * 0.25;
-  const shoulderW = headR * (2.6 + r() * 0.8);
-  const shoulderY = cy + headR * (2.1 + r() * 0.3);
+  const shoulderW = headR * (2.4 + r() * 0.7);
+  const shoulderTop = cy + headR * (1.2 + r() * 0.2);
+  const shoulderMid = shoulderTop + headR * 1.1;
   const hairLen = 0.4 + r() * 0.9;
   const stripe = 2 + r() * 2;
   const out = Buffer.alloc(w * h * 3);
@@ -118,11 +119,19 @@ function renderScene(w: number, h: number, r: () => number): Buffer {
       if (gradient === 0) t = ny;
       else if (gradient === 1) t = Math.min(1, Math.hypot(nx - spotX, (ny - spotY) * (h / w)) * 1.4);
       else t = (nx + ny) / 2;
-      let R = mix(bgLight[0], bgDark[0], t);
-      let G = mix(bgLight[1], bgDark[1], t);
-      let B = mix(bgLight[2], bgDark[2], t);
-      // Shoulders and chest: a wide ellipse cut off by the frame's bottom edge.
-      const body = ellipse(x, y, cx, shoulderY + headR * 2.2, shoulderW, headR * 2.6, 0.02);
+      const vignette = 1 - 0.18 * ((nx - 0.5) ** 2 + (ny - 0.5) ** 2) * 4;
+      let R = mix(bgLight[0], bgDark[0], t) * vignette;
+      let G = mix(bgLight[1], bgDark[1], t) * vignette;
+      let B = mix(bgLight[2], bgDark[2], t) * vignette;
+      // Shoulders: rounded on top, then the torso widening a little down to the frame's edge.
+      let body = 0;
+      if (y >= shoulderTop - 2) {
+        if (y < shoulderMid) body = ellipse(x, y, cx, shoulderMid, shoulderW, shoulderMid - shoulderTop, 0.02);
+        else {
+          const half = shoulderW * (1 + (0.06 * (y - shoulderMid)) / headR);
+          body = 1 - smoothstep(half - 1.5, half + 1.5, Math.abs(x - cx));
+        }
+      }
       if (body > 0) {
         const fold = 0.85 + 0.15 * Math.sin((x - cx) / (headR * 0.35) + y / (headR * 0.9));
         const side = keyFromLeft ? 1 - (x - cx + shoulderW) / (2 * shoulderW) : (x - cx + shoulderW) / (2 * shoulderW);
@@ -132,7 +141,7 @@ function renderScene(w: number, h: number, r: () => number): Buffer {
         B = mix(B, cloth[2] * light, body);
       }
       // Neck, then head: rotated slightly, shaded from the key side.
-      const neck = ellipse(x, y, cx, cy + headR * 1.3, headR * 0.42, headR * 0.8, 0.04);
+      const neck = ellipse(x, y, cx, cy + headR * 0.95, headR * 0.4, headR * 0.6, 0.04);
       const dx = x - cx;
       const dy = y - cy;
       const rx = dx * Math.cos(tilt) + dy * Math.sin(tilt);
@@ -174,19 +183,23 @@ function renderScene(w: number, h: number, r: () => number): Buffer {
   return out;
 }
 
-const GRAIN_TILE = 509; // prime, so the repeat never lines up with 8-pixel JPEG blocks
-
-/** Luminance grain centred on mid-grey, for an overlay blend (mid-grey leaves pixels unchanged). */
-function grainTile(r: () => number, strength: number): Buffer {
-  const out = Buffer.alloc(GRAIN_TILE * GRAIN_TILE * 3);
-  for (let i = 0; i < GRAIN_TILE * GRAIN_TILE; i++) {
-    const n = (r() + r() + r() - 1.5) * strength; // roughly Gaussian
-    const v = Math.max(0, Math.min(255, Math.round(128 + n)));
-    out[i * 3] = v;
-    out[i * 3 + 1] = v;
-    out[i * 3 + 2] = v;
+/**
+ * Adds luminance grain in place, clamped to 0..255: enough texture that JPEG sizes and sharpness
+ * behave like a camera file's.
+ */
+function addGrain(rgb: Buffer, seed: number, strength: number): void {
+  const px = new Uint8ClampedArray(rgb.buffer, rgb.byteOffset, rgb.length);
+  let s = (seed * 2654435761) >>> 0 || 1;
+  for (let i = 0; i < px.length; i += 3) {
+    // xorshift32; two 8-bit draws summed give a soft, roughly bell-shaped grain
+    s ^= s << 13;
+    s ^= s >>> 17;
+    s ^= s << 5;
+    const n = (((s & 0xff) + ((s >>> 8) & 0xff) - 255) * strength) / 255;
+    px[i] = px[i]! + n;
+    px[i + 1] = px[i + 1]! + n;
+    px[i + 2] = px[i + 2]! + n;
   }
-  return out;
 }
 
 export async function syntheticPortrait(opts: SyntheticPortraitOptions): Promise<Buffer> {
@@ -198,10 +211,12 @@ export async function syntheticPortrait(opts: SyntheticPortraitOptions): Promise
   const bw = Math.max(16, Math.round(width / 4));
   const bh = Math.max(16, Math.round(height / 4));
   const scene = renderScene(bw, bh, r);
-  const grain = grainTile(r, 22);
-  let jpeg = await sharp(scene, { raw: { width: bw, height: bh, channels: 3 } })
-    .resize(width, height, { fit: 'fill', kernel: 'cubic' })
-    .composite([{ input: grain, raw: { width: GRAIN_TILE, height: GRAIN_TILE, channels: 3 }, tile: true, blend: 'overlay' }])
+  const full = await sharp(scene, { raw: { width: bw, height: bh, channels: 3 } })
+    .resize(width, height, { fit: 'fill', kernel: 'linear' })
+    .raw()
+    .toBuffer();
+  addGrain(full, seed, 14);
+  let jpeg = await sharp(full, { raw: { width, height, channels: 3 } })
     .jpeg({ quality: opts.quality ?? 90 })
     .toBuffer();
   if (opts.exif && Object.keys(opts.exif).length > 0) jpeg = await writeExif(jpeg, opts.exif);
