@@ -62,7 +62,7 @@ export default function ShootInsights({ shootId, frames, frameHrefBase }: Props)
 
   if (frames.length === 0) {
     return (
-      <section className="rounded-card border border-paper-edge bg-paper p-6 text-center font-sans text-ink" data-shoot={shootId}>
+      <section className="card p-6 text-center font-sans text-ink" data-shoot={shootId}>
         <h2 className="font-display text-title">Shoot insights</h2>
         <p className="mt-2 text-body text-ink-soft">
           No frames are ready yet. Settings charts and cull hints appear here once the shoot&rsquo;s frames have been processed.
@@ -124,9 +124,9 @@ export default function ShootInsights({ shootId, frames, frameHrefBase }: Props)
           third of the usual sharpness, near-identical content. They are Fillcard&rsquo;s own rules of thumb.
         </p>
         {hintCount === 0 ? (
-          <p className="mt-3 rounded-card border border-moss bg-moss-light p-3">Nothing to flag: every measured frame sits close to the rest.</p>
+          <p className="notice-ok mt-3">Nothing to flag: every measured frame sits close to the rest.</p>
         ) : (
-          <div className="mt-3 grid grid-cols-1 gap-4 md:grid-cols-2">
+          <div className="mt-3 grid grid-cols-1 items-start gap-4 md:grid-cols-2">
             <HintList title="Exposure differs" empty="No exposure outliers.">
               {hints.exposureOutliers.map((o) => {
                 const f = byId.get(o.id);
@@ -178,7 +178,7 @@ const linkClass =
 function HintList({ title, empty, children }: { title: string; empty: string; children: ReactNode[] }) {
   const items = children.filter(Boolean);
   return (
-    <section className="rounded-card border border-paper-edge bg-paper p-3">
+    <section className="card p-3">
       <h4 className="font-semibold">
         {title} <span className="font-normal text-ink-soft">({items.length})</span>
       </h4>
@@ -227,7 +227,7 @@ function CountChart({
 }) {
   const captionId = `${idPrefix}-caption`;
   return (
-    <figure aria-labelledby={captionId} className="rounded-card border border-paper-edge bg-paper p-3">
+    <figure aria-labelledby={captionId} className="card p-3">
       <figcaption id={captionId} className="font-semibold">
         {title}
         {note ? <span className="ml-2 text-caption font-normal text-ink-soft">{note}</span> : null}

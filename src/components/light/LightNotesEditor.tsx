@@ -290,8 +290,8 @@ export default function LightNotesEditor({ shootId, initial, cameraFromExif, can
   return (
     <div className="grid gap-6 font-sans text-body text-ink lg:grid-cols-[minmax(0,1fr)_26rem] lg:items-start">
       {/* Plan and readings */}
-      <div className="flex min-w-0 flex-col gap-4">
-        <figure className="rounded-card border border-paper-edge bg-paper-deep p-3 shadow-card">
+      <div className="flex min-w-0 flex-col gap-4 lg:sticky lg:top-4">
+        <figure className="card p-3">
           <svg
             ref={svgRef}
             viewBox={`${-pad} ${-pad} ${w + 2 * pad} ${h + 2 * pad}`}
@@ -413,7 +413,7 @@ export default function LightNotesEditor({ shootId, initial, cameraFromExif, can
           </p>
         </figure>
 
-        <section aria-labelledby={`${ids}-readings`} className="rounded-card border border-paper-edge bg-paper p-4">
+        <section aria-labelledby={`${ids}-readings`} className="card p-4">
           <h2 id={`${ids}-readings`} className="font-display text-lead">
             What follows from the plan
           </h2>
@@ -483,7 +483,7 @@ export default function LightNotesEditor({ shootId, initial, cameraFromExif, can
           )}
         </section>
 
-        <aside role="note" className="rounded-card border border-amber bg-amber-light p-4 text-body text-ink">
+        <aside role="note" className="notice-caution text-body">
           <p>
             <span className="font-semibold">Safety: </span>
             {SAFETY_CAUTION}
@@ -604,7 +604,7 @@ export default function LightNotesEditor({ shootId, initial, cameraFromExif, can
 
           <Card title="Notes">
             <label className="flex flex-col gap-1">
-              <span className="text-caption text-ink-soft">Anything else to repeat the look next time</span>
+              <span className={labelClass}>What else to repeat next time</span>
               <textarea
                 value={notes.notes ?? ''}
                 maxLength={MAX_NOTES}
@@ -632,7 +632,7 @@ export default function LightNotesEditor({ shootId, initial, cameraFromExif, can
             </p>
           </div>
         ) : (
-          <p className="text-caption text-ink-soft">Read only: only the studio owner can change light notes.</p>
+          <p className="text-caption text-ink-soft">Read only: you can view these light notes but not change them.</p>
         )}
       </form>
     </div>
@@ -791,7 +791,7 @@ function StopsHelper({
       <h3 className="font-semibold">To move a light by some stops</h3>
       <div className="mt-2 flex flex-wrap items-end gap-3">
         <label className="flex flex-col gap-1">
-          <span className="text-caption text-ink-soft">Light</span>
+          <span className={labelClass}>Light</span>
           <select id={`${idPrefix}-helper-source`} value={sourceId} onChange={(e) => setChosenId(e.target.value)} className={inputClass}>
             {notes.sources.map((s) => (
               <option key={s.id} value={s.id}>
@@ -801,7 +801,7 @@ function StopsHelper({
           </select>
         </label>
         <label className="flex flex-col gap-1">
-          <span className="text-caption text-ink-soft">Stops (+ brighter, − darker)</span>
+          <span className={labelClass}>Stops (+ brighter, − darker)</span>
           <input type="number" step={0.5} min={-10} max={10} value={stopsText} onChange={(e) => setStopsText(e.target.value)} className={`${inputClass} w-28`} />
         </label>
       </div>
@@ -812,16 +812,15 @@ function StopsHelper({
 
 // --- form parts -----------------------------------------------------------------------------
 
-const inputClass =
-  'w-full min-w-0 rounded border border-paper-edge bg-paper px-2 py-1.5 text-body text-ink focus:border-clay focus:outline-none focus-visible:ring-2 focus-visible:ring-clay disabled:bg-paper-deep disabled:text-ink-soft';
-const primaryButton =
-  'rounded-card bg-clay px-4 py-2 font-semibold text-paper hover:bg-clay-dark focus:outline-none focus-visible:ring-2 focus-visible:ring-clay focus-visible:ring-offset-2 focus-visible:ring-offset-paper disabled:opacity-60';
-const secondaryButton =
-  'rounded-card border border-clay px-3 py-1.5 text-body text-clay-dark hover:bg-clay-light focus:outline-none focus-visible:ring-2 focus-visible:ring-clay focus-visible:ring-offset-1 disabled:opacity-50';
+// The shared component classes from the global stylesheet, so the editor looks like the rest of the desk.
+const inputClass = 'field min-w-0 disabled:bg-paper-deep disabled:text-ink-soft';
+const labelClass = 'label';
+const primaryButton = 'btn-accent';
+const secondaryButton = 'btn-quiet';
 
 function Card({ title, children }: { title: string; children: ReactNode }) {
   return (
-    <section className="rounded-card border border-paper-edge bg-paper p-4">
+    <section className="card p-4">
       <h2 className="mb-3 font-display text-lead">{title}</h2>
       {children}
     </section>
@@ -831,7 +830,7 @@ function Card({ title, children }: { title: string; children: ReactNode }) {
 function SelectField({ label, value, onChange, children }: { label: string; value: string; onChange: (v: string) => void; children: ReactNode }) {
   return (
     <label className="flex min-w-0 flex-col gap-1">
-      <span className="text-caption text-ink-soft">{label}</span>
+      <span className={labelClass}>{label}</span>
       <select value={value} onChange={(e) => onChange(e.target.value)} className={inputClass}>
         {children}
       </select>
@@ -871,7 +870,7 @@ function NumberField({
   const isInvalid = text.trim() === '' ? !onClear : !Number.isFinite(n) || n < min || n > max;
   return (
     <label className="flex min-w-0 flex-col gap-1">
-      <span className="text-caption text-ink-soft">
+      <span className={labelClass}>
         {label}
         {unit ? ` (${unit})` : ''}
       </span>
@@ -923,7 +922,7 @@ function TextField({
   const isInvalid = text.trim() !== '' && parse(text) === undefined;
   return (
     <label className="flex min-w-0 flex-col gap-1">
-      <span className="text-caption text-ink-soft">{label}</span>
+      <span className={labelClass}>{label}</span>
       <input
         type="text"
         inputMode="decimal"
@@ -974,7 +973,7 @@ function SourceForm({
       </legend>
       <div className="grid grid-cols-2 gap-3">
         <label className="col-span-2 flex flex-col gap-1">
-          <span className="text-caption text-ink-soft">Label</span>
+          <span className={labelClass}>Label</span>
           <input type="text" value={source.label} maxLength={MAX_TEXT} onChange={(e) => onChange({ label: e.target.value })} className={inputClass} />
         </label>
         <SelectField label="Kind" value={source.kind} onChange={(v) => onChange({ kind: v as SourceKind })}>
@@ -996,7 +995,7 @@ function SourceForm({
           <p className="self-end pb-1.5 text-caption text-ink-soft">No power: its level comes from distance.</p>
         )}
         <label className="flex flex-col gap-1">
-          <span className="text-caption text-ink-soft">Modifier</span>
+          <span className={labelClass}>Modifier</span>
           <input
             type="text"
             value={source.modifier ?? ''}
@@ -1007,7 +1006,7 @@ function SourceForm({
           />
         </label>
         <label className="flex flex-col gap-1">
-          <span className="text-caption text-ink-soft">Aims at</span>
+          <span className={labelClass}>Aims at</span>
           <input type="text" value={source.aimsAt} maxLength={MAX_TEXT} onChange={(e) => onChange({ aimsAt: e.target.value })} className={inputClass} />
         </label>
         <NumberField label="Across" unit="m" value={source.x} min={0} max={room.widthM} step={0.1} onChange={(v) => onMove(v, source.y)} />
