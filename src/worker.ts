@@ -17,7 +17,7 @@ await b.work(QUEUES.mailSend.name, { batchSize: 1, pollingIntervalSeconds: 1 }, 
 for (const job of workerJobs) {
   // pg-boss 10 runs one handler per `work` call; several calls give several concurrent jobs.
   for (let i = 0; i < (job.concurrency ?? concurrency); i++) {
-    await b.work(job.queue.name, { batchSize: 1, pollingIntervalSeconds: 1 }, job.handler as never);
+    await b.work(job.queue.name, { batchSize: 1, pollingIntervalSeconds: 1, includeMetadata: true }, job.handler as never);
   }
 }
 

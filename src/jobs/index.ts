@@ -1,9 +1,10 @@
 import type PgBoss from 'pg-boss';
-import type { QUEUES } from '../lib/server/jobs';
+import { QUEUES } from '../lib/server/jobs';
+import { frameProcessHandler, sweepFrames, frameCropsHandler } from './frame-process';
 
 export interface WorkerJob {
   queue: (typeof QUEUES)[keyof typeof QUEUES];
-  handler: (jobs: PgBoss.Job<any>[]) => Promise<unknown>;
+  handler: (jobs: PgBoss.JobWithMetadata<any>[]) => Promise<unknown>;
   /** How many of this job run at once in one worker (defaults to WORKER_CONCURRENCY). */
   concurrency?: number;
   /** Re-enqueues work whose job was lost; runs every 15 s. */
@@ -11,4 +12,7 @@ export interface WorkerJob {
 }
 
 /** Every job kind the worker does besides e-mail, one file each. */
-export const workerJobs: WorkerJob[] = [];
+export const workerJobs: WorkerJob[] = [
+  { queue: QUEUES.frameProcess, handler: frameProcessHandler, sweep: sweepFrames },
+  { queue: QUEUES.frameCrops, handler: frameCropsHandler, concurrency: 1 },
+];

@@ -1,0 +1,143 @@
+/**
+ * Direct-to-storage uploads. The browser's uploader asks us to sign each S3 request; we make every
+ * object key here (never taking one from the browser) and only sign requests for keys under the
+ * shoot's own prefix. When a file is finished the browser registers it, and we check the object
+ * really is there with the size it claimed before a frame exists.
+ */
+import path from 'node:path';
+import {
+  PutObjectCommand, CreateMultipartUploadCommand, UploadPartCommand, ListPartsCommand,
+  CompleteMultipartUploadCommand, AbortMultipartUploadCommand, DeleteObjectCommand,
+  ListMultipartUploadsCommand,
+} from '@aws-sdk/client-s3';
+import { getSignedUrl } from '@aws-sdk/s3-request-presigner';
+import { config } from './config';
+import { db } from './db';
+import { keys, headObject, deleteObject, s3 } from './storage';
+import { badRequest, conflict, HttpError } from './http';
+import { enqueue, QUEUES } from './jobs';
+import { IMAGE_LIMITS } from './images';
+import type { z } from 'zod';
+import type { signRequestSchema } from '../schemas/shoot';
+
+export const UPLOAD_LIMITS = {
+  maxBytes: IMAGE_LIMITS.maxBytes,
+  maxFilesPerShoot: 2000,
+  /** Files above this go up in parts, so a dropped connection loses one part, not the file. */
+  multipartAboveBytes: 8 * 1024 * 1024,
+  partBytes: 8 * 1024 * 1024,
+  extensions: ['jpg', 'jpeg', 'png', 'tif', 'tiff', 'webp'],
+  contentTypes: ['image/jpeg', 'image/png', 'image/tiff', 'image/webp'],
+};
+
+const EXT_TYPE: Record<string, string> = { jpg: 'image/jpeg', jpeg: 'image/jpeg', png: 'image/png', tif: 'image/tiff', tiff: 'image/tiff', webp: 'image/webp' };
+
+export function extensionOf(fileName: string): string {
+  return path.extname(fileName).slice(1).toLowerCase();
+}
+
+type SignRequest = z.infer<typeof signRequestSchema>;
+
+/** Signs one S3 request for the uploader; returns the URL and the key the browser must use. */
+export async function signUploadRequest(prefix: string, makeKey: (ext: string) => string, req: SignRequest, expiresIn = 900) {
+  const bucket = config().S3_BUCKET;
+  const startsNew = (req.method === 'PUT' && !req.uploadId) || (req.method === 'POST' && !req.uploadId);
+  let key = req.key;
+  let contentType = req.contentType;
+  if (startsNew) {
+    const ext = extensionOf(req.fileName ?? req.key);
+    if (!UPLOAD_LIMITS.extensions.includes(ext)) {
+      throw new HttpError(415, 'Only JPEG, PNG, TIFF and WebP photos can be uploaded.');
+    }
+    if (req.size !== undefined && req.size > UPLOAD_LIMITS.maxBytes) {
+      throw new HttpError(413, `This file is larger than the ${Math.round(UPLOAD_LIMITS.maxBytes / 1048576)} MB limit.`);
+    }
+    key = makeKey(ext === 'jpeg' ? 'jpg' : ext === 'tif' ? 'tiff' : ext);
+    contentType = EXT_TYPE[ext];
+  } else if (!key.startsWith(prefix) || key.includes('..')) {
+    throw new HttpError(403, 'That upload does not belong to this shoot.');
+  }
+
+  const signer = s3();
+  let command;
+  if (req.method === 'PUT' && !req.uploadId) command = new PutObjectCommand({ Bucket: bucket, Key: key, ContentType: contentType });
+  else if (req.method === 'POST' && !req.uploadId) command = new CreateMultipartUploadCommand({ Bucket: bucket, Key: key, ContentType: contentType });
+  else if (req.method === 'PUT' && req.uploadId && req.partNumber) command = new UploadPartCommand({ Bucket: bucket, Key: key, UploadId: req.uploadId, PartNumber: req.partNumber });
+  else if (req.method === 'GET' && req.uploadId) command = new ListPartsCommand({ Bucket: bucket, Key: key, UploadId: req.uploadId });
+  else if (req.method === 'POST' && req.uploadId) command = new CompleteMultipartUploadCommand({ Bucket: bucket, Key: key, UploadId: req.uploadId });
+  else if (req.method === 'DELETE' && req.uploadId) command = new AbortMultipartUploadCommand({ Bucket: bucket, Key: key, UploadId: req.uploadId });
+  else if (req.method === 'DELETE') {
+    // Removing a finished upload the user cancelled: only while no frame points at it.
+    const used = await db()('frames').where({ object_key: key }).first('id') ?? await db()('finals').where({ object_key: key }).first('id');
+    if (used) throw conflict('That file is already part of the shoot; delete the frame instead.');
+    command = new DeleteObjectCommand({ Bucket: bucket, Key: key });
+  } else throw badRequest('That upload request is not one we sign.');
+
+  const url = await getSignedUrl(signer, command as never, { expiresIn });
+  return { url, key, headers: contentType && startsNew && req.method === 'PUT' ? { 'content-type': contentType } : undefined };
+}
+
+export function originalsPrefix(studioId: string, shootId: string) {
+  return `${keys.shootPrefix(studioId, shootId)}originals/`;
+}
+
+/** Creates the frame for a finished upload, once; the same key registered twice gives the same frame. */
+export async function registerFrame(shoot: { id: string; studio_id: string }, input: { key: string; name: string; size: number }) {
+  const prefix = originalsPrefix(shoot.studio_id, shoot.id);
+  if (!input.key.startsWith(prefix) || !/^[0-9a-f-]{36}\.(jpg|png|tiff|webp)$/.test(input.key.slice(prefix.length))) {
+    throw new HttpError(403, 'That upload does not belong to this shoot.');
+  }
+  const existing = await db()('frames').where({ object_key: input.key }).first('id', 'state');
+  if (existing) return { id: existing.id as string, created: false };
+
+  const count = await db()('frames').where({ shoot_id: shoot.id }).count<{ n: string }[]>('* as n');
+  if (Number(count[0].n) >= UPLOAD_LIMITS.maxFilesPerShoot) {
+    await deleteObject(input.key);
+    throw new HttpError(409, `A shoot holds at most ${UPLOAD_LIMITS.maxFilesPerShoot} frames.`);
+  }
+  const head = await headObject(input.key);
+  if (!head) throw new HttpError(422, 'The file did not arrive in storage. Please upload it again.');
+  if (head.bytes !== input.size) {
+    await deleteObject(input.key);
+    throw new HttpError(422, `The file arrived incomplete (${head.bytes} of ${input.size} bytes). Please upload it again.`);
+  }
+  if (head.bytes > UPLOAD_LIMITS.maxBytes) {
+    await deleteObject(input.key);
+    throw new HttpError(413, `This file is larger than the ${Math.round(UPLOAD_LIMITS.maxBytes / 1048576)} MB limit.`);
+  }
+  const name = cleanFileName(input.name);
+  const [row] = await db()('frames')
+    .insert({ studio_id: shoot.studio_id, shoot_id: shoot.id, object_key: input.key, original_name: name, bytes: head.bytes })
+    .onConflict('object_key').ignore()
+    .returning('id');
+  const id = row?.id ?? (await db()('frames').where({ object_key: input.key }).first('id')).id;
+  await enqueueFrame(id);
+  return { id: id as string, created: !!row };
+}
+
+export async function enqueueFrame(frameId: string) {
+  try {
+    await enqueue(QUEUES.frameProcess, { frameId }, `frame:${frameId}`);
+  } catch (err) {
+    console.error('[fillcard] could not enqueue frame; the worker sweep will pick it up:', err);
+  }
+}
+
+/** File names are shown and used in downloads: keep printable characters only, and a sane length. */
+export function cleanFileName(name: string): string {
+  const base = name.split(/[\\/]/).pop() ?? 'file';
+  // eslint-disable-next-line no-control-regex
+  const clean = base.normalize('NFC').replace(/[\u0000-\u001f\u007f\u202a-\u202e\u2066-\u2069]/g, '').trim();
+  return (clean || 'file').slice(0, 200);
+}
+
+/** Multipart uploads started more than a day ago and never finished are aborted, so no parts linger. */
+export async function abortStaleMultipartUploads(olderThanMs = 24 * 3600_000) {
+  const r = await s3().send(new ListMultipartUploadsCommand({ Bucket: config().S3_BUCKET, Prefix: 'studios/' }));
+  const cutoff = Date.now() - olderThanMs;
+  for (const u of r.Uploads ?? []) {
+    if (u.Initiated && u.Initiated.getTime() < cutoff) {
+      await s3().send(new AbortMultipartUploadCommand({ Bucket: config().S3_BUCKET, Key: u.Key!, UploadId: u.UploadId! }));
+    }
+  }
+}
