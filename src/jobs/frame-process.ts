@@ -29,6 +29,8 @@ async function claim(frameId: string) {
 export async function processFrame(frameId: string, isLastTry: boolean) {
   const frame = await claim(frameId);
   if (!frame) return;
+  // One line per claim: with several workers, this says which one built (or dropped) a frame.
+  console.log(`[fillcard] worker ${process.pid} claimed frame ${frame.id} (attempt ${frame.attempts})`);
   try {
     const original = await getObjectBuffer(frame.object_key);
     const sha256 = createHash('sha256').update(original).digest('hex');
@@ -89,13 +91,27 @@ export async function processFrame(frameId: string, isLastTry: boolean) {
   }
 }
 
-/** A file that is not a usable photo: the frame says why, and the original is removed from storage. */
+/**
+ * A file that is not a usable photo: the frame says why, and the original is removed from storage,
+ * with any variants a twin's race left behind.
+ */
 async function reject(frame: { id: string; object_key: string }, message: string) {
   await db()('frames').where({ id: frame.id }).update({ state: 'failed', error: message, claimed_at: null, sha256: null });
+  const leftover = await db()('frame_variants').where({ frame_id: frame.id }).delete().returning('object_key');
+  await deleteUnusedVariants(leftover.map((r: { object_key: string }) => r.object_key));
   await deleteObject(frame.object_key).catch((e) => console.error('[fillcard] could not delete rejected original:', e));
 }
 
+/** Variant objects are content-addressed and may be shared by identical frames: only unreferenced ones go. */
+async function deleteUnusedVariants(candidates: string[]) {
+  if (!candidates.length) return;
+  const used = new Set(await db()('frame_variants').whereIn('object_key', candidates).pluck('object_key'));
+  await Promise.all([...new Set(candidates)].filter((k) => !used.has(k)).map((k) =>
+    deleteObject(k).catch((e) => console.error('[fillcard] could not delete a replaced variant:', e))));
+}
+
 async function storeVariants(frame: { id: string; studio_id: string; shoot_id: string }, variants: VariantOut[]) {
+  const before = await db()('frame_variants').where({ frame_id: frame.id }).whereIn('kind', variants.map((v) => v.kind)).pluck('object_key');
   for (const v of variants) {
     const key = keys.variant(frame.studio_id, frame.shoot_id, v.contentHash, 'jpg');
     await putObject(key, v.data, 'image/jpeg', IMMUTABLE);
@@ -104,6 +120,8 @@ async function storeVariants(frame: { id: string; studio_id: string; shoot_id: s
       .onConflict(['frame_id', 'kind'])
       .merge(['object_key', 'width', 'height', 'bytes']);
   }
+  // A moved focus point gives new crops under new keys; the old ones would otherwise stay in storage.
+  await deleteUnusedVariants(before);
 }
 
 const isUniqueViolation = (err: unknown) => (err as { code?: string }).code === '23505';
@@ -117,19 +135,32 @@ export async function sweepFrames() {
   const ids = await db()('frames')
     .where((q) => q.where({ state: 'waiting' }).where('created_at', '<', db().raw("now() - interval '1 minute'"))
       .orWhere((q2) => q2.where({ state: 'processing' }).where('claimed_at', '<', db().raw(`now() - ${CLAIM_LAPSE}`))))
+    // The queues use pg-boss's standard policy, where a singleton key does not stop a second job:
+    // without this, every sweep would add another job for each frame still waiting in a long queue.
+    .whereNotExists(db().select(db().raw('1')).from('pgboss.job as j')
+      .where('j.name', QUEUES.frameProcess.name)
+      .whereIn('j.state', ['created', 'retry', 'active'])
+      .where(db().raw("j.data->>'frameId' = frames.id::text")))
     .limit(200)
     .pluck('id');
   for (const id of ids) await enqueueFrame(id);
 }
 
 /** Rebuilds a frame's crops around the focus point the owner chose. */
-export async function frameCropsHandler(jobs: PgBoss.Job<{ frameId: string }>[]) {
+export async function frameCropsHandler(jobs: PgBoss.JobWithMetadata<{ frameId: string }>[]) {
   for (const job of jobs) {
     const frame = await db()('frames').where({ id: job.data.frameId, state: 'ready' }).first();
     if (!frame) continue;
-    const original = await getObjectBuffer(frame.object_key);
-    const crops = await buildCropVariants(original, { x: frame.focus_x, y: frame.focus_y });
-    await storeVariants(frame, crops);
+    try {
+      const original = await getObjectBuffer(frame.object_key);
+      const crops = await buildCropVariants(original, { x: frame.focus_x, y: frame.focus_y });
+      await storeVariants(frame, crops);
+      // Only when no newer point arrived meanwhile: that one has its own job coming.
+      await db()('frames').where({ id: frame.id, focus_x: frame.focus_x, focus_y: frame.focus_y }).update({ crops_pending: false });
+    } catch (err) {
+      if (job.retryCount >= job.retryLimit) await db()('frames').where({ id: frame.id }).update({ crops_pending: false });
+      throw err;
+    }
   }
 }
 

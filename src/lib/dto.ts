@@ -31,6 +31,8 @@ export interface FrameDto {
   sharpness: number | null;
   phash: string | null;
   focus: { x: number; y: number } | null;
+  /** True from a focus point change until the crops have been rebuilt around it. */
+  cropsPending: boolean;
   /** Presigned URLs of the frame's variants, by kind. */
   urls: Partial<Record<VariantKind, string>>;
 }

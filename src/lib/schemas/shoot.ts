@@ -48,8 +48,10 @@ export const frameEditSchema = z.object({
 
 export const registerUploadSchema = z.object({
   key: z.string().min(1).max(300),
-  name: z.string().min(1).max(255),
-  size: z.number().int().positive(),
+  // Long names are shortened on the server rather than refused: the file is already in storage.
+  name: z.string().min(1).max(1000),
+  // 0 is let through so the server can answer with a clear message and remove the empty object.
+  size: z.number().int().nonnegative(),
 });
 
 export const signRequestSchema = z.object({

@@ -94,6 +94,7 @@ export function frameDto(f: Record<string, any>, urls: Partial<Record<VariantKin
     sharpness: f.sharpness,
     phash: f.phash,
     focus: f.focus_x == null ? null : { x: f.focus_x, y: f.focus_y },
+    cropsPending: !!f.crops_pending,
     urls,
   };
 }

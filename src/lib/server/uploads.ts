@@ -45,13 +45,15 @@ export async function signUploadRequest(prefix: string, makeKey: (ext: string) =
   let key = req.key;
   let contentType = req.contentType;
   if (startsNew) {
-    const ext = extensionOf(req.fileName ?? req.key);
+    // The uploader knows the file; refusing here means a bad file never reaches storage at all.
+    if (!req.fileName || req.size === undefined) throw badRequest('Tell us the file name and size before uploading.');
+    const name = `“${cleanFileName(req.fileName)}”`;
+    const ext = extensionOf(req.fileName);
     if (!UPLOAD_LIMITS.extensions.includes(ext)) {
-      throw new HttpError(415, 'Only JPEG, PNG, TIFF and WebP photos can be uploaded.');
+      throw new HttpError(415, `${name} is not a photo Fillcard takes: upload JPEG, PNG, TIFF or WebP files.`);
     }
-    if (req.size !== undefined && req.size > UPLOAD_LIMITS.maxBytes) {
-      throw new HttpError(413, `This file is larger than the ${Math.round(UPLOAD_LIMITS.maxBytes / 1048576)} MB limit.`);
-    }
+    if (req.size === 0) throw new HttpError(422, `${name} is empty (0 bytes). Please export it again.`);
+    if (req.size > UPLOAD_LIMITS.maxBytes) throw tooLarge(name, req.size);
     key = makeKey(ext === 'jpeg' ? 'jpg' : ext === 'tif' ? 'tiff' : ext);
     contentType = EXT_TYPE[ext];
   } else if (!key.startsWith(prefix) || key.includes('..')) {
@@ -74,38 +76,63 @@ export async function signUploadRequest(prefix: string, makeKey: (ext: string) =
   } else throw badRequest('That upload request is not one we sign.');
 
   const url = await getSignedUrl(signer, command as never, { expiresIn });
-  return { url, key, headers: contentType && startsNew && req.method === 'PUT' ? { 'content-type': contentType } : undefined };
+  // The signed Content-Type must be the one sent: the browser's own guess for the file may differ.
+  return { url, key, headers: startsNew && contentType ? { 'content-type': contentType } : undefined };
+}
+
+function tooLarge(name: string, bytes: number) {
+  const mb = (n: number) => `${Math.round(n / 1048576)} MB`;
+  return new HttpError(413, `${name} is ${mb(bytes)}; Fillcard takes files up to ${mb(UPLOAD_LIMITS.maxBytes)}. Please export it as a high-quality JPEG.`);
 }
 
 export function originalsPrefix(studioId: string, shootId: string) {
   return `${keys.shootPrefix(studioId, shootId)}originals/`;
 }
 
-/** Creates the frame for a finished upload, once; the same key registered twice gives the same frame. */
-export async function registerFrame(shoot: { id: string; studio_id: string }, input: { key: string; name: string; size: number }) {
+function assertOwnOriginal(shoot: { id: string; studio_id: string }, key: string) {
   const prefix = originalsPrefix(shoot.studio_id, shoot.id);
-  if (!input.key.startsWith(prefix) || !/^[0-9a-f-]{36}\.(jpg|png|tiff|webp)$/.test(input.key.slice(prefix.length))) {
+  if (!key.startsWith(prefix) || !/^[0-9a-f-]{36}\.(jpg|png|tiff|webp)$/.test(key.slice(prefix.length))) {
     throw new HttpError(403, 'That upload does not belong to this shoot.');
   }
+}
+
+/**
+ * Removes a finished upload that will not become a frame, so no unregistered original stays in
+ * storage. Only this shoot's own originals, and never one a frame already uses.
+ */
+export async function discardUpload(shoot: { id: string; studio_id: string }, key: string) {
+  try {
+    assertOwnOriginal(shoot, key);
+  } catch {
+    return;
+  }
+  if (await db()('frames').where({ object_key: key }).first('id')) return;
+  await deleteObject(key).catch((e) => console.error('[fillcard] could not remove a refused upload:', e));
+}
+
+/** Creates the frame for a finished upload, once; the same key registered twice gives the same frame. */
+export async function registerFrame(shoot: { id: string; studio_id: string }, input: { key: string; name: string; size: number }) {
+  assertOwnOriginal(shoot, input.key);
   const existing = await db()('frames').where({ object_key: input.key }).first('id', 'state');
   if (existing) return { id: existing.id as string, created: false };
 
+  const name = cleanFileName(input.name);
+  const refuse = async (err: HttpError) => {
+    await deleteObject(input.key);
+    return err;
+  };
   const count = await db()('frames').where({ shoot_id: shoot.id }).count<{ n: string }[]>('* as n');
   if (Number(count[0].n) >= UPLOAD_LIMITS.maxFilesPerShoot) {
-    await deleteObject(input.key);
-    throw new HttpError(409, `A shoot holds at most ${UPLOAD_LIMITS.maxFilesPerShoot} frames.`);
+    throw await refuse(new HttpError(409, `A shoot holds at most ${UPLOAD_LIMITS.maxFilesPerShoot} frames.`));
   }
   const head = await headObject(input.key);
-  if (!head) throw new HttpError(422, 'The file did not arrive in storage. Please upload it again.');
+  if (!head) throw new HttpError(422, `“${name}” did not arrive in storage. Please upload it again.`);
+  // Presigned PUTs do not bind the size, so what arrived is checked here, before anything reads it.
+  if (head.bytes === 0) throw await refuse(new HttpError(422, `“${name}” is empty (0 bytes). Please export it again.`));
+  if (head.bytes > UPLOAD_LIMITS.maxBytes) throw await refuse(tooLarge(`“${name}”`, head.bytes));
   if (head.bytes !== input.size) {
-    await deleteObject(input.key);
-    throw new HttpError(422, `The file arrived incomplete (${head.bytes} of ${input.size} bytes). Please upload it again.`);
+    throw await refuse(new HttpError(422, `“${name}” arrived with ${head.bytes} bytes instead of ${input.size}. Please upload it again.`));
   }
-  if (head.bytes > UPLOAD_LIMITS.maxBytes) {
-    await deleteObject(input.key);
-    throw new HttpError(413, `This file is larger than the ${Math.round(UPLOAD_LIMITS.maxBytes / 1048576)} MB limit.`);
-  }
-  const name = cleanFileName(input.name);
   const [row] = await db()('frames')
     .insert({ studio_id: shoot.studio_id, shoot_id: shoot.id, object_key: input.key, original_name: name, bytes: head.bytes })
     .onConflict('object_key').ignore()

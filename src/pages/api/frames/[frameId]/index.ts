@@ -25,6 +25,7 @@ export const PATCH: APIRoute = route(async (ctx) => {
     if (frame.state !== 'ready') throw conflict('The frame is still being processed.');
     changes.focus_x = edit.focus.x;
     changes.focus_y = edit.focus.y;
+    changes.crops_pending = true;
   }
   if (Object.keys(changes).length) await db()('frames').where({ id: frame.id, studio_id: member.studioId }).update(changes);
   if (edit.focus) await enqueueCrops(frame.id);

@@ -2,7 +2,7 @@ import type { APIRoute } from 'astro';
 import { route, json, readJson } from '../../../../../lib/server/http';
 import { requireMember, shootForMember } from '../../../../../lib/server/permissions';
 import { registerUploadSchema } from '../../../../../lib/schemas/shoot';
-import { registerFrame } from '../../../../../lib/server/uploads';
+import { registerFrame, discardUpload } from '../../../../../lib/server/uploads';
 import { listFrames, frameCounts, assertFramesEditable } from '../../../../../lib/server/shoots';
 import type { ShootFramesDto } from '../../../../../lib/dto';
 
@@ -19,8 +19,14 @@ export const GET: APIRoute = route(async (ctx) => {
 export const POST: APIRoute = route(async (ctx) => {
   const member = requireMember(ctx, 'frame:upload');
   const shoot = await shootForMember(member, ctx.params.shootId!);
-  assertFramesEditable(shoot);
   const input = registerUploadSchema.parse(await readJson(ctx.request));
+  try {
+    assertFramesEditable(shoot);
+  } catch (err) {
+    // The picks came in while this file was uploading: it will not become a frame, so it goes.
+    await discardUpload(shoot, input.key);
+    throw err;
+  }
   const frame = await registerFrame(shoot, input);
   return json(frame, frame.created ? 201 : 200);
 });
