@@ -18,6 +18,10 @@ export default defineConfig({
   integrations: [react(), tailwind({ applyBaseStyles: false })],
   // Astro refuses cross-site form posts (Origin header check); keep it on.
   security: { checkOrigin: true, allowedDomains },
+  // Astro hashes its own inline scripts into the page's script-src; src/middleware.ts adds the rest
+  // of the policy at run time (the object store's address is configuration, not build input).
+  experimental: { csp: true },
+  build: { inlineStylesheets: 'never' },
   server: { host: '127.0.0.1', port: Number(process.env.PORT ?? 4321) },
   vite: {
     ssr: { external: ['sharp', 'pg-boss', '@node-rs/argon2', 'knex', 'pg', 'nodemailer', 'archiver'] },

@@ -1,7 +1,7 @@
 import { defineMiddleware, sequence } from 'astro:middleware';
 import { memberFromCookies } from './lib/server/auth';
 import { clientFromCookies } from './lib/server/client-access';
-import { isProduction } from './lib/server/config';
+import { isProduction, config } from './lib/server/config';
 
 /** Puts the signed-in member and/or the gallery client on `locals` for every request. */
 const sessions = defineMiddleware(async (ctx, next) => {
@@ -22,13 +22,33 @@ const securityHeaders = defineMiddleware(async (ctx, next) => {
   h.set('Referrer-Policy', 'same-origin');
   h.set('X-Frame-Options', 'DENY');
   h.set('Permissions-Policy', 'camera=(), microphone=(), geolocation=()');
-  if (!h.has('Content-Security-Policy')) {
-    h.set('Content-Security-Policy', "frame-ancestors 'none'; object-src 'none'; base-uri 'self'");
-  }
+  h.set('Content-Security-Policy', contentSecurityPolicy(h.get('Content-Security-Policy')));
   if (isProduction()) h.set('Strict-Transport-Security', 'max-age=31536000; includeSubDomains');
   if (!h.has('Cache-Control') && (ctx.locals.member || ctx.locals.client)) h.set('Cache-Control', 'private, no-store');
   return response;
 });
+
+/**
+ * Scripts: only our own files and the inline scripts Astro hashed at build time (no 'unsafe-inline').
+ * Styles may be inline (style attributes from islands). Images and uploads may reach the object store.
+ */
+function contentSecurityPolicy(fromAstro: string | null): string {
+  const astroScripts = fromAstro?.match(/script-src ([^;]*)/)?.[1]?.trim() ?? "'self'";
+  const store = [config().S3_PUBLIC_ENDPOINT ?? config().S3_ENDPOINT].map((u) => new URL(u).origin).join(' ');
+  return [
+    "default-src 'self'",
+    `script-src ${astroScripts}`,
+    "style-src 'self' 'unsafe-inline'",
+    `img-src 'self' data: blob: ${store}`,
+    `connect-src 'self' ${store}`,
+    "font-src 'self'",
+    "object-src 'none'",
+    "base-uri 'self'",
+    // A checkout form may redirect to the payment page, which form-action also governs.
+    `form-action 'self' ${config().STRIPE_API_BASE ? new URL(config().STRIPE_API_BASE!).origin : 'https://checkout.stripe.com'}`,
+    "frame-ancestors 'none'",
+  ].join('; ');
+}
 
 const isStaticAsset = (p: string) => p.startsWith('/_astro/') || p.startsWith('/fonts/') || p === '/favicon.svg';
 
