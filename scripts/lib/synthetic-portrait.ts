@@ -96,14 +96,17 @@ function renderScene(w: number, h: number, r: () => number): Buffer {
   const skin = pick(SKIN, r);
   const cloth = pick(CLOTHES, r);
   const hair = pick(HAIR, r);
-  const gradient = Math.floor(r() * 3); // 0 vertical, 1 spot, 2 diagonal
+  const gradient = Math.floor(r() * 4); // 0 vertical, 1 spot, 2 diagonal, 3 side light
+  const flipGradient = r() < 0.5;
   const spotX = 0.25 + r() * 0.5;
   const spotY = 0.2 + r() * 0.4;
   const keyFromLeft = r() < 0.5;
   const unit = Math.min(w, h);
-  const headR = unit * (0.12 + r() * 0.05);
-  const cx = w * (0.3 + r() * 0.4);
-  const cy = h * (0.28 + r() * 0.12);
+  // Framing from a tight head-and-shoulders to a looser half-body, placed anywhere from the
+  // left to the right third, so different seeds make differently composed frames.
+  const headR = unit * (0.08 + r() * 0.12);
+  const cx = w * (0.2 + r() * 0.6);
+  const cy = h * (0.22 + r() * 0.2);
   const tilt = (r() - 0.5) * 0.25;
   const shoulderW = headR * (2.4 + r() * 0.7);
   const shoulderTop = cy + headR * (1.2 + r() * 0.2);
@@ -118,7 +121,9 @@ function renderScene(w: number, h: number, r: () => number): Buffer {
       let t: number;
       if (gradient === 0) t = ny;
       else if (gradient === 1) t = Math.min(1, Math.hypot(nx - spotX, (ny - spotY) * (h / w)) * 1.4);
-      else t = (nx + ny) / 2;
+      else if (gradient === 2) t = (nx + ny) / 2;
+      else t = nx;
+      if (flipGradient) t = 1 - t;
       const vignette = 1 - 0.18 * ((nx - 0.5) ** 2 + (ny - 0.5) ** 2) * 4;
       let R = mix(bgLight[0], bgDark[0], t) * vignette;
       let G = mix(bgLight[1], bgDark[1], t) * vignette;

@@ -69,8 +69,8 @@ export function laplacianVariance(grey: Float32Array, width: number, height: num
 }
 
 const HASH_SIZE = 32;
-const LOW = 8;
-// DCT-II basis for the 8 lowest frequencies of a 32-sample signal.
+const LOW = 9;
+// DCT-II basis for the 9 lowest frequencies of a 32-sample signal.
 const DCT_BASIS: Float64Array[] = Array.from({ length: LOW }, (_, u) => {
   const row = new Float64Array(HASH_SIZE);
   for (let x = 0; x < HASH_SIZE; x++) row[x] = Math.cos(((2 * x + 1) * u * Math.PI) / (2 * HASH_SIZE));
@@ -78,8 +78,11 @@ const DCT_BASIS: Float64Array[] = Array.from({ length: LOW }, (_, u) => {
 });
 
 /**
- * pHash: 2-D DCT of a 32×32 greyscale copy, the 8×8 lowest frequencies compared with their median.
- * Robust to resizing, recompression and small tonal changes; structure decides the bits.
+ * pHash: 2-D DCT of a 32×32 greyscale copy; the 8×8 block of lowest frequencies, leaving out the
+ * zero-frequency row and column (as the original pHash library does, from memory), compared with
+ * its median. The left-out terms carry overall brightness and plain left-right or top-bottom
+ * gradients, which every studio backdrop has and which would make unrelated frames look alike.
+ * Robust to resizing, recompression and small tonal changes.
  */
 export function phashFromGrey32(grey: Float32Array): string {
   if (grey.length !== HASH_SIZE * HASH_SIZE) throw new RangeError('pHash needs a 32×32 greyscale image');
@@ -92,20 +95,19 @@ export function phashFromGrey32(grey: Float32Array): string {
       rows[y * LOW + v] = s;
     }
   }
-  const coeffs = new Float64Array(LOW * LOW);
-  for (let u = 0; u < LOW; u++) {
+  const coeffs = new Float64Array(64);
+  for (let u = 1; u < LOW; u++) {
     const basis = DCT_BASIS[u]!;
-    for (let v = 0; v < LOW; v++) {
+    for (let v = 1; v < LOW; v++) {
       let s = 0;
       for (let y = 0; y < HASH_SIZE; y++) s += basis[y]! * rows[y * LOW + v]!;
-      coeffs[u * LOW + v] = s;
+      coeffs[(u - 1) * 8 + v - 1] = s;
     }
   }
-  // Median without the DC term, which only says how bright the picture is.
-  const sorted = Array.from(coeffs.subarray(1)).sort((a, b) => a - b);
+  const sorted = Array.from(coeffs).sort((a, b) => a - b);
   const median = (sorted[31]! + sorted[32]!) / 2;
   let hash = 0n;
-  for (let i = 0; i < LOW * LOW; i++) hash = (hash << 1n) | (coeffs[i]! > median ? 1n : 0n);
+  for (let i = 0; i < 64; i++) hash = (hash << 1n) | (coeffs[i]! > median ? 1n : 0n);
   return hash.toString(16).padStart(16, '0');
 }
 

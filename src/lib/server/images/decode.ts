@@ -59,7 +59,8 @@ export async function inspectImage(buf: Buffer, fileName?: string): Promise<Imag
   const type = checkUpload(buf, fileName);
   let meta: sharp.Metadata;
   try {
-    meta = await sharp(buf, DECODE_OPTIONS).metadata();
+    // Header only, no pixels: the limit is checked below so the message can give the size.
+    meta = await sharp(buf, { ...DECODE_OPTIONS, limitInputPixels: false }).metadata();
   } catch (err) {
     throw decodeFailure(err, fileName);
   }
