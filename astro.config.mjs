@@ -14,6 +14,8 @@ if (process.env.PUBLIC_ORIGIN) {
 
 export default defineConfig({
   output: 'server',
+  // A numbered test stack builds into its own folder, so stacks side by side never swap files under each other.
+  outDir: process.env.FILLCARD_OUT_DIR ?? './dist',
   adapter: node({ mode: 'standalone' }),
   integrations: [react(), tailwind({ applyBaseStyles: false })],
   // Astro refuses cross-site form posts (Origin header check); keep it on.

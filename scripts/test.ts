@@ -8,14 +8,14 @@ import path from 'node:path';
 import { spawnSync } from 'node:child_process';
 import {
   root, log, startPostgres, Children, testPorts as ports, serviceEnv, startObjectStore, startMailCatcher,
-  startPaymentStandIn, runMigrations, buildApp, startApp, startWorker, waitForPort,
+  startPaymentStandIn, runMigrations, buildApp, startApp, startWorker, waitForPort, testSlot, testWorkDir,
 } from './lib/services';
 
 const args = process.argv.slice(2);
 const only = args.find((a) => a === '--unit' || a === '--e2e');
 const passthrough = args.filter((a) => !a.startsWith('--'));
-const work = path.join(root, '.data', 'test');
-const artifacts = path.join(root, 'tests', '.artifacts');
+const work = testWorkDir;
+const artifacts = path.join(root, 'tests', testSlot === 0 ? '.artifacts' : `.artifacts-${testSlot}`);
 const children = new Children();
 let postgres: Awaited<ReturnType<typeof startPostgres>> | undefined;
 
@@ -35,7 +35,10 @@ async function main(): Promise<number> {
   mkdirSync(artifacts, { recursive: true });
 
   postgres = await startPostgres({ dataDir: path.join(work, 'postgres'), port: ports.postgres, database: 'fillcard_test', fast: true });
-  const env: NodeJS.ProcessEnv = { ...serviceEnv(ports, postgres.url), NODE_ENV: 'test', FILLCARD_TEST_WORK: work, FILLCARD_ARTIFACTS: artifacts };
+  const env: NodeJS.ProcessEnv = {
+    ...serviceEnv(ports, postgres.url), NODE_ENV: 'test', FILLCARD_TEST_WORK: work, FILLCARD_ARTIFACTS: artifacts,
+    FILLCARD_TEST_SLOT: String(testSlot), FILLCARD_OUT_DIR: testSlot === 0 ? path.join(root, 'dist') : path.join(work, 'dist'),
+  };
   Object.assign(process.env, env);
   await Promise.all([
     startObjectStore(children, ports.objectStore, path.join(work, 'objects'), [env.PUBLIC_ORIGIN!], path.join(artifacts, 'object-store.log')),

@@ -155,7 +155,17 @@ export interface ServicePorts {
 }
 
 export const startPorts: ServicePorts = { postgres: 55432, objectStore: 9390, smtp: 1025, mailWeb: 1080, payments: 12111, app: 4321 };
-export const testPorts: ServicePorts = { postgres: 55442, objectStore: 9391, smtp: 1026, mailWeb: 1081, payments: 12112, app: 4331 };
+/**
+ * Test stacks are numbered (FILLCARD_TEST_SLOT, default 0) so several can run side by side, each
+ * with its own ports, data folder and build folder.
+ */
+export const testSlot = Number(process.env.FILLCARD_TEST_SLOT ?? 0);
+export const testPorts: ServicePorts = testSlot === 0
+  ? { postgres: 55442, objectStore: 9391, smtp: 1026, mailWeb: 1081, payments: 12112, app: 4331 }
+  : { postgres: 55450 + testSlot, objectStore: 9400 + testSlot, smtp: 1030 + testSlot, mailWeb: 1090 + testSlot, payments: 12120 + testSlot, app: 4340 + testSlot };
+export const testWorkDir = path.join(root, '.data', testSlot === 0 ? 'test' : `test-${testSlot}`);
+/** Where `astro build` writes: dist/ normally, a folder of its own for a numbered test stack. */
+export const outDir = () => process.env.FILLCARD_OUT_DIR ?? path.join(root, 'dist');
 
 const tsx = path.join(root, 'node_modules/.bin/tsx');
 
@@ -215,7 +225,7 @@ export function buildApp(env: NodeJS.ProcessEnv) {
 }
 
 export function startApp(children: Children, env: NodeJS.ProcessEnv, logFile?: string) {
-  return children.spawn('app', process.execPath, [path.join(root, 'dist/server/entry.mjs')], { env, logFile });
+  return children.spawn('app', process.execPath, [path.join(env.FILLCARD_OUT_DIR ?? outDir(), 'server/entry.mjs')], { env, logFile });
 }
 
 export function startWorker(children: Children, env: NodeJS.ProcessEnv, logFile?: string) {

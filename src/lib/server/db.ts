@@ -23,7 +23,11 @@ export function db(): Knex {
 
 /** A plain pg pool for Lucia's adapter, which speaks node-postgres directly. */
 export function pool(): pg.Pool {
-  poolInstance ??= new pg.Pool({ connectionString: config().DATABASE_URL, max: 5, connectionTimeoutMillis: 10_000 });
+  if (!poolInstance) {
+    poolInstance = new pg.Pool({ connectionString: config().DATABASE_URL, max: 5, connectionTimeoutMillis: 10_000 });
+    // An idle connection dropped by the server (a restart, a failover) must not take the process down.
+    poolInstance.on('error', (err) => console.error('[fillcard] idle database connection lost:', err.message));
+  }
   return poolInstance;
 }
 
