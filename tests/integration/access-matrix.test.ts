@@ -36,7 +36,7 @@ describe('access matrix', () => {
     const shootB = await makeShoot(a.studioId);
     const other = await makeShoot(b.studioId);
     const expiring = await makeShoot(a.studioId);
-    world = { shootA: shootA.shoot.id, shootB: shootB.shoot.id, shootOther: other.shoot.id, tokenA: shootA.token };
+    world = { shootA: shootA.shoot.id, shootB: shootB.shoot.id, shootOther: other.shoot.id, tokenA: shootA.token, clientA: shootA.client.id };
 
     agents.anonymous = new Agent();
     agents.clientA = await clientAgent(shootA.token);

@@ -7,6 +7,7 @@ export interface World {
   shootB: string;
   shootOther: string; // a shoot of studio B
   tokenA: string;
+  clientA: string; // the client of shoot A
 }
 
 export interface Row {
