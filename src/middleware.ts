@@ -3,6 +3,16 @@ import { memberFromCookies } from './lib/server/auth';
 import { clientFromCookies } from './lib/server/client-access';
 import { isProduction, config } from './lib/server/config';
 
+/** Photos never pass through the app (they go straight to storage), so no request body needs more than 1 MB. */
+const MAX_BODY_BYTES = 1024 * 1024;
+const bodyLimit = defineMiddleware(async (ctx, next) => {
+  const declared = Number(ctx.request.headers.get('content-length') ?? 0);
+  if (declared > MAX_BODY_BYTES) {
+    return new Response(JSON.stringify({ error: 'The request is too large.' }), { status: 413, headers: { 'Content-Type': 'application/json' } });
+  }
+  return next();
+});
+
 /** Puts the signed-in member and/or the gallery client on `locals` for every request. */
 const sessions = defineMiddleware(async (ctx, next) => {
   ctx.locals.member = null;
@@ -52,4 +62,4 @@ function contentSecurityPolicy(fromAstro: string | null): string {
 
 const isStaticAsset = (p: string) => p.startsWith('/_astro/') || p.startsWith('/fonts/') || p === '/favicon.svg';
 
-export const onRequest = sequence(securityHeaders, sessions);
+export const onRequest = sequence(securityHeaders, bodyLimit, sessions);
