@@ -1,0 +1,78 @@
+import { useEffect, useId, useRef } from 'react';
+import { useModal } from './use-modal';
+import { CloseMark, PickMark } from './icons';
+import type { GalleryFrame, GalleryPick } from '../../lib/schemas/picks';
+
+interface Props {
+  pair: [GalleryFrame, GalleryFrame];
+  picks: ReadonlyMap<string, GalleryPick>;
+  canPick: boolean;
+  /** Keep `keep` in the picks and take `drop` out. */
+  onKeep: (keep: GalleryFrame, drop: GalleryFrame) => void;
+  onClose: () => void;
+}
+
+/** Two frames side by side (one above the other on a narrow phone), to choose between near twins. */
+export default function CompareFrames({ pair, picks, canPick, onKeep, onClose }: Props) {
+  const titleId = useId();
+  const { ref, trapTab } = useModal(onClose, () => document.querySelector<HTMLElement>('[data-compare-start]'));
+  const firstAction = useRef<HTMLButtonElement>(null);
+  useEffect(() => firstAction.current?.focus(), []);
+
+  return (
+    <dialog
+      ref={ref}
+      aria-labelledby={titleId}
+      onKeyDown={trapTab}
+      className="m-0 h-[100dvh] max-h-none w-screen max-w-none border-0 bg-[#161d21] p-0 text-paper backdrop:bg-[#161d21]"
+    >
+      <div className="flex h-full flex-col">
+        <header className="flex items-center gap-3 px-3 py-2 sm:px-4">
+          <h2 id={titleId} className="min-w-0 flex-1 font-sans text-body font-semibold text-paper">Compare two frames</h2>
+          <button type="button" onClick={onClose} className="btn !min-h-[44px] !px-3 text-paper hover:bg-white/10" aria-label="Close the comparison">
+            <CloseMark /><span className="hidden sm:inline">Close</span>
+          </button>
+        </header>
+        <div className="grid min-h-0 flex-1 grid-rows-2 gap-2 px-2 pb-2 sm:grid-cols-2 sm:grid-rows-1 sm:gap-4 sm:px-4 sm:pb-4">
+          {pair.map((frame, i) => {
+            const other = pair[1 - i];
+            const picked = picks.has(frame.id);
+            return (
+              <figure key={frame.id} className="flex min-h-0 flex-col rounded-card bg-black/20 p-2" aria-label={`${i === 0 ? 'First' : 'Second'}: ${frame.name}`}>
+                <div className="relative min-h-0 flex-1">
+                  <img
+                    src={frame.proof.url}
+                    srcSet={`${frame.thumb.url} ${frame.thumb.width}w, ${frame.proof.url} ${frame.proof.width}w`}
+                    sizes="(min-width: 640px) 50vw, 100vw"
+                    width={frame.proof.width}
+                    height={frame.proof.height}
+                    alt={`Proof of ${frame.name}`}
+                    className="absolute inset-0 m-auto h-auto max-h-full w-auto max-w-full object-contain"
+                  />
+                </div>
+                <figcaption className="mt-2 flex flex-wrap items-center justify-between gap-2">
+                  <span className="min-w-0 truncate text-caption text-paper/80">
+                    {frame.name}{picked ? ' · in your picks' : ''}
+                  </span>
+                  {canPick ? (
+                    <button
+                      ref={i === 0 ? firstAction : undefined}
+                      type="button"
+                      onClick={() => onKeep(frame, other)}
+                      className="btn !min-h-[44px] text-white"
+                      style={{ background: 'var(--brand, #a4492b)' }}
+                    >
+                      <PickMark picked />
+                      Pick this one
+                    </button>
+                  ) : null}
+                </figcaption>
+              </figure>
+            );
+          })}
+        </div>
+        {canPick ? <p className="px-4 pb-3 text-center text-caption text-paper/60">Picking one takes the other out of your picks.</p> : null}
+      </div>
+    </dialog>
+  );
+}
