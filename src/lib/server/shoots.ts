@@ -57,12 +57,15 @@ export async function listFrames(shootId: string, studioId: string, opts: { forC
   const variants = frames.length
     ? await db()('frame_variants').whereIn('frame_id', frames.map((f) => f.id)).select('frame_id', 'kind', 'object_key')
     : [];
+  // Sign every URL first, then group: grouping inside the awaits let each variant start a fresh
+  // map entry and keep only the last kind.
+  const signed = await Promise.all(variants.map(async (v) => ({ ...v, url: await variantUrl(v.object_key) })));
   const byFrame = new Map<string, Partial<Record<VariantKind, string>>>();
-  await Promise.all(variants.map(async (v) => {
+  for (const v of signed) {
     const urls = byFrame.get(v.frame_id) ?? {};
-    urls[v.kind as VariantKind] = await variantUrl(v.object_key);
+    urls[v.kind as VariantKind] = v.url;
     byFrame.set(v.frame_id, urls);
-  }));
+  }
   return frames.map((f) => frameDto(f, byFrame.get(f.id) ?? {}));
 }
 

@@ -1,0 +1,408 @@
+import { useId, useState } from 'react';
+import { useForm, type FieldErrors, type Resolver } from 'react-hook-form';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { newShootSchema, type NewShootInput } from '../../lib/schemas/shoot';
+import { SUPPORTED_CURRENCIES, currencyName, minorUnits, parseMoney, toDecimalText } from '../../lib/currency';
+import { parsePercent, percentText } from './percent';
+
+export interface ClientChoice {
+  id: string;
+  name: string;
+  email: string;
+}
+
+export interface ShootDefaults {
+  allowance: number;
+  extraPriceMinor: number;
+  currency: string;
+  taxRateBp: number;
+  taxMode: 'exclusive' | 'inclusive';
+  /** The sitting's day and the proofs' last day, as YYYY-MM-DD. */
+  shotOn: string;
+  proofExpiresOn: string;
+}
+
+interface Props {
+  clients: ClientChoice[];
+  defaults: ShootDefaults;
+  /** A client to start with, e.g. when coming from that client's page. */
+  clientId?: string | null;
+}
+
+/** What the owner types; money in major units and tax in per cent, turned into the API's shape on submit. */
+interface FormValues {
+  clientKind: 'existing' | 'new';
+  clientId: string;
+  clientName: string;
+  clientEmail: string;
+  title: string;
+  shotOn: string;
+  allowance: string;
+  extraPrice: string;
+  currency: string;
+  taxRate: string;
+  taxMode: 'exclusive' | 'inclusive';
+  proofExpiresOn: string;
+  passcode: string;
+}
+
+const CHOICE =
+  'inline-flex min-h-[44px] cursor-pointer items-center gap-2 rounded-card border border-paper-edge bg-white px-3 py-2 has-[:checked]:border-clay has-[:checked]:bg-clay-light/30 has-[:focus-visible]:outline has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-clay';
+
+export const TAX_CAUTION = 'Fillcard computes tax from your rate; you stay responsible for local tax rules.';
+
+type FieldName = keyof FormValues;
+
+/** Where a message about the API's field belongs in this form. */
+const FIELD_FOR_PATH: Record<string, FieldName> = {
+  'client.id': 'clientId',
+  'client.name': 'clientName',
+  'client.email': 'clientEmail',
+  client: 'clientId',
+  title: 'title',
+  shotOn: 'shotOn',
+  allowance: 'allowance',
+  extraPriceMinor: 'extraPrice',
+  currency: 'currency',
+  taxRateBp: 'taxRate',
+  taxMode: 'taxMode',
+  proofExpiresOn: 'proofExpiresOn',
+  passcode: 'passcode',
+};
+
+function toInput(v: FormValues, extraPriceMinor: number, taxRateBp: number): Record<string, unknown> {
+  return {
+    client: v.clientKind === 'existing' ? { kind: 'existing', id: v.clientId } : { kind: 'new', name: v.clientName, email: v.clientEmail },
+    title: v.title,
+    shotOn: v.shotOn,
+    allowance: v.allowance.trim() === '' ? Number.NaN : v.allowance,
+    extraPriceMinor,
+    currency: v.currency,
+    taxRateBp,
+    taxMode: v.taxMode,
+    proofExpiresOn: v.proofExpiresOn,
+    passcode: v.passcode,
+  };
+}
+
+const checkShoot = zodResolver(newShootSchema);
+
+/**
+ * The shared schema decides; this only turns typed money and per cent into minor units and basis
+ * points first, and puts each message back on the field the owner typed into.
+ */
+const resolver: Resolver<FormValues> = async (values, context, options) => {
+  const errors: Partial<Record<FieldName, { type: string; message: string }>> = {};
+  let extraPriceMinor = Number.NaN;
+  try {
+    extraPriceMinor = parseMoney(values.extraPrice, values.currency);
+  } catch (err) {
+    errors.extraPrice = { type: 'parse', message: (err as Error).message };
+  }
+  const tax = parsePercent(values.taxRate);
+  if (typeof tax === 'string') errors.taxRate = { type: 'parse', message: tax };
+  const input = toInput(values, extraPriceMinor, typeof tax === 'number' ? tax : Number.NaN);
+  const checked = await checkShoot(input as never, context, { ...options, fields: {}, names: undefined } as never);
+  for (const [path, message] of flattenErrors(checked.errors as FieldErrors)) {
+    const field = FIELD_FOR_PATH[path] ?? FIELD_FOR_PATH[path.split('.')[0]!];
+    if (field && !errors[field]) errors[field] = { type: 'schema', message };
+  }
+  if (Object.keys(errors).length) return { values: {}, errors: errors as FieldErrors<FormValues> };
+  return { values, errors: {} };
+};
+
+function flattenErrors(errors: FieldErrors, prefix = ''): [string, string][] {
+  const out: [string, string][] = [];
+  for (const [key, value] of Object.entries(errors ?? {})) {
+    if (!value || typeof value !== 'object') continue;
+    const path = prefix ? `${prefix}.${key}` : key;
+    if (typeof (value as { message?: unknown }).message === 'string') out.push([path, (value as { message: string }).message]);
+    else out.push(...flattenErrors(value as FieldErrors, path));
+  }
+  return out;
+}
+
+export default function NewShootForm({ clients, defaults, clientId }: Props) {
+  const ids = useId();
+  const [serverError, setServerError] = useState<string | null>(null);
+  const startClient = clients.find((c) => c.id === clientId) ?? null;
+  const {
+    register,
+    handleSubmit,
+    watch,
+    setError,
+    formState: { errors, isSubmitting },
+  } = useForm<FormValues>({
+    resolver,
+    mode: 'onTouched',
+    defaultValues: {
+      clientKind: clients.length ? 'existing' : 'new',
+      clientId: startClient?.id ?? '',
+      clientName: '',
+      clientEmail: '',
+      title: '',
+      shotOn: defaults.shotOn,
+      allowance: String(defaults.allowance),
+      extraPrice: toDecimalText(defaults.extraPriceMinor, defaults.currency),
+      currency: defaults.currency,
+      taxRate: percentText(defaults.taxRateBp),
+      taxMode: defaults.taxMode,
+      proofExpiresOn: defaults.proofExpiresOn,
+      passcode: '',
+    },
+  });
+  const clientKind = watch('clientKind');
+  const currency = watch('currency');
+  const digits = safeMinorUnits(currency);
+
+  async function submit(values: FormValues) {
+    setServerError(null);
+    const body = toInput(values, parseMoney(values.extraPrice, values.currency), parsePercent(values.taxRate) as number) as NewShootInput;
+    let res: Response;
+    try {
+      res = await fetch('/api/shoots', { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify(body) });
+    } catch {
+      setServerError('Fillcard could not be reached. Check your connection and try again; nothing was saved.');
+      return;
+    }
+    const data = (await res.json().catch(() => ({}))) as { url?: string; error?: string; issues?: { path: (string | number)[]; message: string }[] };
+    if (res.ok && data.url) {
+      window.location.assign(data.url);
+      return;
+    }
+    if (res.status === 401) {
+      setServerError('Your session has ended. Sign in again in another tab, then create the shoot; your entries stay here.');
+      return;
+    }
+    let placed = false;
+    for (const issue of data.issues ?? []) {
+      const field = FIELD_FOR_PATH[issue.path.join('.')] ?? FIELD_FOR_PATH[String(issue.path[0])];
+      if (field) {
+        setError(field, { type: 'server', message: issue.message }, { shouldFocus: !placed });
+        placed = true;
+      }
+    }
+    setServerError(data.error ?? `The shoot could not be created (error ${res.status}). Please try again.`);
+  }
+
+  const fieldError = (name: FieldName) =>
+    errors[name]?.message ? (
+      <p id={`${ids}-${name}-error`} className="mt-1 text-caption font-semibold text-ember">
+        {errors[name]!.message}
+      </p>
+    ) : null;
+  const describedBy = (name: FieldName, hint?: boolean) =>
+    [errors[name] ? `${ids}-${name}-error` : null, hint ? `${ids}-${name}-hint` : null].filter(Boolean).join(' ') || undefined;
+  const input = (name: FieldName) => ({
+    id: `${ids}-${name}`,
+    'aria-invalid': errors[name] ? true : undefined,
+    ...register(name),
+  });
+
+  return (
+    <form onSubmit={handleSubmit(submit)} noValidate className="space-y-6" aria-describedby={serverError ? `${ids}-server` : undefined}>
+      {serverError ? (
+        <p id={`${ids}-server`} role="alert" className="notice-error">
+          {serverError}
+        </p>
+      ) : null}
+
+      <fieldset className="card p-5 sm:p-6">
+        <legend className="sr-only">Client</legend>
+        <h2 className="text-title">Client</h2>
+        <div className="mt-3 flex flex-wrap gap-2" role="radiogroup" aria-label="Client">
+          {clients.length ? (
+            <label className={CHOICE}>
+              <input type="radio" value="existing" {...register('clientKind')} /> A client of the studio
+            </label>
+          ) : null}
+          <label className={CHOICE}>
+            <input type="radio" value="new" {...register('clientKind')} /> A new client
+          </label>
+        </div>
+        {clientKind === 'existing' ? (
+          <div className="mt-4">
+            <label className="label" htmlFor={`${ids}-clientId`}>
+              Client
+            </label>
+            <select className="field" {...input('clientId')} aria-describedby={describedBy('clientId')}>
+              <option value="">Choose a client…</option>
+              {clients.map((c) => (
+                <option key={c.id} value={c.id}>
+                  {c.name} — {c.email}
+                </option>
+              ))}
+            </select>
+            {fieldError('clientId')}
+          </div>
+        ) : (
+          <div className="mt-4 grid gap-4 sm:grid-cols-2">
+            <div>
+              <label className="label" htmlFor={`${ids}-clientName`}>
+                Name
+              </label>
+              <input className="field" autoComplete="off" maxLength={120} {...input('clientName')} aria-describedby={describedBy('clientName')} />
+              {fieldError('clientName')}
+            </div>
+            <div>
+              <label className="label" htmlFor={`${ids}-clientEmail`}>
+                E-mail
+              </label>
+              <input className="field" type="email" autoComplete="off" maxLength={254} {...input('clientEmail')} aria-describedby={describedBy('clientEmail', true)} />
+              <p id={`${ids}-clientEmail-hint`} className="mt-1 text-caption text-ink-faint">
+                The viewing link goes to this address.
+              </p>
+              {fieldError('clientEmail')}
+            </div>
+          </div>
+        )}
+      </fieldset>
+
+      <fieldset className="card p-5 sm:p-6">
+        <legend className="sr-only">Sitting</legend>
+        <h2 className="text-title">Sitting</h2>
+        <div className="mt-4 grid gap-4 sm:grid-cols-[2fr_1fr]">
+          <div>
+            <label className="label" htmlFor={`${ids}-title`}>
+              Title
+            </label>
+            <input className="field" maxLength={160} placeholder="Family portraits, spring" {...input('title')} aria-describedby={describedBy('title')} />
+            {fieldError('title')}
+          </div>
+          <div>
+            <label className="label" htmlFor={`${ids}-shotOn`}>
+              Date of the shoot
+            </label>
+            <input className="field" type="date" {...input('shotOn')} aria-describedby={describedBy('shotOn')} />
+            {fieldError('shotOn')}
+          </div>
+        </div>
+      </fieldset>
+
+      <fieldset className="card p-5 sm:p-6">
+        <legend className="sr-only">Package</legend>
+        <h2 className="text-title">Package</h2>
+        <div className="mt-4 grid gap-4 sm:grid-cols-3">
+          <div>
+            <label className="label" htmlFor={`${ids}-allowance`}>
+              Retouches included
+            </label>
+            <input className="field" inputMode="numeric" {...input('allowance')} aria-describedby={describedBy('allowance', true)} />
+            <p id={`${ids}-allowance-hint`} className="mt-1 text-caption text-ink-faint">
+              The allowance: picks up to this number cost nothing extra.
+            </p>
+            {fieldError('allowance')}
+          </div>
+          <div>
+            <label className="label" htmlFor={`${ids}-extraPrice`}>
+              Price per extra retouch
+            </label>
+            <div className="flex">
+              <input
+                className="field rounded-r-none"
+                inputMode="decimal"
+                {...input('extraPrice')}
+                aria-describedby={describedBy('extraPrice', true)}
+              />
+              <span className="inline-flex items-center rounded-r-card border border-l-0 border-paper-edge bg-paper-deep px-3 text-ink-soft" aria-hidden="true">
+                {currency}
+              </span>
+            </div>
+            <p id={`${ids}-extraPrice-hint`} className="mt-1 text-caption text-ink-faint">
+              {digits === 0 ? `In whole ${currency}, e.g. 3000.` : `In ${currency}, e.g. 25${digits === 2 ? '.00' : '.' + '0'.repeat(digits)}.`}
+            </p>
+            {fieldError('extraPrice')}
+          </div>
+          <div>
+            <label className="label" htmlFor={`${ids}-currency`}>
+              Currency
+            </label>
+            <select className="field" {...input('currency')} aria-describedby={describedBy('currency')}>
+              {SUPPORTED_CURRENCIES.map((c) => (
+                <option key={c} value={c}>
+                  {c} — {currencyName(c)}
+                </option>
+              ))}
+            </select>
+            {fieldError('currency')}
+          </div>
+        </div>
+        <div className="mt-4 grid gap-4 sm:grid-cols-3">
+          <div>
+            <label className="label" htmlFor={`${ids}-taxRate`}>
+              Tax rate
+            </label>
+            <div className="flex">
+              <input className="field rounded-r-none" inputMode="decimal" {...input('taxRate')} aria-describedby={describedBy('taxRate', true)} />
+              <span className="inline-flex items-center rounded-r-card border border-l-0 border-paper-edge bg-paper-deep px-3 text-ink-soft" aria-hidden="true">
+                %
+              </span>
+            </div>
+            <p id={`${ids}-taxRate-hint`} className="mt-1 text-caption text-ink-faint">
+              0 when you charge no tax.
+            </p>
+            {fieldError('taxRate')}
+          </div>
+          <div className="sm:col-span-2">
+            <span className="label" id={`${ids}-taxMode-label`}>
+              Your prices
+            </span>
+            <div className="flex flex-wrap gap-2" role="radiogroup" aria-labelledby={`${ids}-taxMode-label`}>
+              <label className={CHOICE}>
+                <input type="radio" value="exclusive" {...register('taxMode')} /> exclude tax (added on top)
+              </label>
+              <label className={CHOICE}>
+                <input type="radio" value="inclusive" {...register('taxMode')} /> include tax
+              </label>
+            </div>
+          </div>
+        </div>
+        <p className="notice-caution mt-4 text-caption">{TAX_CAUTION}</p>
+      </fieldset>
+
+      <fieldset className="card p-5 sm:p-6">
+        <legend className="sr-only">Proofs</legend>
+        <h2 className="text-title">Proofs</h2>
+        <div className="mt-4 grid gap-4 sm:grid-cols-2">
+          <div>
+            <label className="label" htmlFor={`${ids}-proofExpiresOn`}>
+              Proofs close after
+            </label>
+            <input className="field" type="date" {...input('proofExpiresOn')} aria-describedby={describedBy('proofExpiresOn', true)} />
+            <p id={`${ids}-proofExpiresOn-hint`} className="mt-1 text-caption text-ink-faint">
+              The client can pick until the end of this day (UTC).
+            </p>
+            {fieldError('proofExpiresOn')}
+          </div>
+          <div>
+            <label className="label" htmlFor={`${ids}-passcode`}>
+              Passcode (optional)
+            </label>
+            <input className="field" autoComplete="off" maxLength={64} {...input('passcode')} aria-describedby={describedBy('passcode', true)} />
+            <p id={`${ids}-passcode-hint`} className="mt-1 text-caption text-ink-faint">
+              Asked for when the viewing link is opened. Tell it to your client by another way than e-mail.
+            </p>
+            {fieldError('passcode')}
+          </div>
+        </div>
+      </fieldset>
+
+      <div className="flex flex-wrap items-center justify-end gap-3">
+        <a href="/desk" className="btn-quiet">
+          Cancel
+        </a>
+        <button type="submit" className="btn-accent" disabled={isSubmitting}>
+          {isSubmitting ? 'Creating…' : 'Create shoot'}
+        </button>
+      </div>
+    </form>
+  );
+}
+
+function safeMinorUnits(currency: string): number {
+  try {
+    return minorUnits(currency);
+  } catch {
+    return 2;
+  }
+}

@@ -1,0 +1,99 @@
+import { useState } from 'react';
+import type { FrameCounts, FrameDto } from '../../lib/dto';
+import { ApiError, deleteFrame, retryFrame } from './api';
+
+interface Props {
+  counts: FrameCounts;
+  failed: FrameDto[];
+  canFix: boolean;
+  onChanged: () => void;
+}
+
+/** How far the worker has got with the shoot's frames, and what went wrong with which file. */
+export default function ProcessingProgress({ counts, failed, canFix, onChanged }: Props) {
+  const [busy, setBusy] = useState<string | null>(null);
+  const [messages, setMessages] = useState<Record<string, string>>({});
+  if (counts.total === 0) return null;
+  const done = counts.ready + counts.failed;
+  const percent = Math.round((done / counts.total) * 100);
+  const working = counts.waiting + counts.processing;
+
+  async function act(frame: FrameDto, what: 'retry' | 'remove') {
+    setBusy(frame.id);
+    setMessages((m) => ({ ...m, [frame.id]: '' }));
+    try {
+      if (what === 'retry') await retryFrame(frame.id);
+      else await deleteFrame(frame.id);
+      onChanged();
+    } catch (err) {
+      setMessages((m) => ({ ...m, [frame.id]: err instanceof ApiError ? err.message : 'That did not work. Please try again.' }));
+    } finally {
+      setBusy(null);
+    }
+  }
+
+  return (
+    <section aria-labelledby="processing-heading" className="card p-4 sm:p-5" data-testid="processing">
+      <div className="flex flex-wrap items-baseline justify-between gap-2">
+        <h2 id="processing-heading" className="text-title">
+          {working ? 'Building proofs and crops' : 'Frames processed'}
+        </h2>
+        <p className="text-ink-soft" aria-live="polite" data-testid="processing-counts">
+          <span className="font-semibold text-moss">{counts.ready} ready</span>
+          {' · '}
+          <span>{working} waiting</span>
+          {' · '}
+          <span className={counts.failed ? 'font-semibold text-ember' : undefined}>{counts.failed} failed</span>
+          {' · '}
+          <span>{counts.total} in all</span>
+        </p>
+      </div>
+      <div
+        className="mt-3 flex h-2.5 overflow-hidden rounded-full bg-paper-deep"
+        role="progressbar"
+        aria-label="Processing progress"
+        aria-valuemin={0}
+        aria-valuemax={counts.total}
+        aria-valuenow={done}
+        aria-valuetext={`${done} of ${counts.total} frames processed`}
+      >
+        <div className="h-full bg-moss transition-[width] duration-500" style={{ width: `${(counts.ready / counts.total) * 100}%` }} />
+        <div className="h-full bg-ember transition-[width] duration-500" style={{ width: `${(counts.failed / counts.total) * 100}%` }} />
+      </div>
+      <p className="mt-1 text-caption text-ink-faint">
+        {working
+          ? `${percent}% done. Each frame gets a thumbnail, a watermarked proof and three ratio crops; you can keep working meanwhile.`
+          : counts.failed
+            ? 'Every frame has been processed; the ones below need your attention.'
+            : 'Every frame has its proof and crops.'}
+      </p>
+      {failed.length ? (
+        <ul className="mt-3 divide-y divide-paper-edge rounded-card border border-ember/30 bg-ember-light/40" data-testid="failed-frames">
+          {failed.map((f) => (
+            <li key={f.id} className="flex flex-wrap items-start justify-between gap-2 px-3 py-2.5">
+              <div className="min-w-0 flex-1">
+                <p className="break-words font-semibold text-ink">{f.name}</p>
+                <p className="break-words text-ember">{f.error ?? 'This frame could not be processed.'}</p>
+                {messages[f.id] ? (
+                  <p className="mt-1 text-caption font-semibold text-ink" role="alert">
+                    {messages[f.id]}
+                  </p>
+                ) : null}
+              </div>
+              {canFix ? (
+                <div className="flex gap-2">
+                  <button type="button" className="btn-quiet !min-h-[40px] !py-1.5" disabled={busy === f.id} onClick={() => act(f, 'retry')}>
+                    Retry
+                  </button>
+                  <button type="button" className="btn-quiet !min-h-[40px] !py-1.5" disabled={busy === f.id} onClick={() => act(f, 'remove')}>
+                    Remove
+                  </button>
+                </div>
+              ) : null}
+            </li>
+          ))}
+        </ul>
+      ) : null}
+    </section>
+  );
+}
