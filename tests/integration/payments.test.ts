@@ -287,6 +287,32 @@ describe('checkout', () => {
     expect(session.cancel_url).toBe(`${APP}/gallery/${p.shootId}/payment?cancelled=1`);
   });
 
+  it('three checkout requests at once share one order and one payment page', async () => {
+    const p = await payingClient(EUR_19);
+    const answers = await Promise.all([checkout(p), checkout(p), checkout(p)]);
+    expect(answers.map((a) => a.status)).toEqual([200, 200, 200]);
+    expect(new Set(answers.map((a) => a.url)).size).toBe(1);
+    const orders = await ordersOf(p.shootId);
+    expect(orders).toHaveLength(1);
+    expect(orders[0].checkout_url).toBe(answers[0].url);
+  });
+
+  it('a price change while the page is open closes that page and makes a new order, keeping the picks locked', async () => {
+    const p = await payingClient(EUR_19);
+    const first = await checkout(p);
+    await db()('shoots').where({ id: p.shootId }).update({ extra_price_minor: 3000 });
+    const second = await checkout(p);
+    expect(second.status).toBe(200);
+    expect(second.url).not.toBe(first.url);
+    expect((await retrieveCheckoutSession(sessionIdOf(first.url!))).status).toBe('expired');
+    const orders = await ordersOf(p.shootId);
+    // 2 extras × 3000 = 6000 cents; 19 % of 6000 = 1140; total 7140 (worked by hand)
+    expect(orders.map((o) => [o.attempt, o.state, o.total_minor])).toEqual([[1, 'expired', 5950], [2, 'pending', 7140]]);
+    // The provider's expiry webhook for the first page arrived and changed nothing more.
+    expect((await standInEvents(sessionIdOf(first.url!))).map((e) => [e.type, e.delivered])).toEqual([['checkout.session.expired', true]]);
+    expect((await shootRow(p.shootId)).picks_submitted_at).not.toBeNull();
+  });
+
   it('refuses a total above 2,147,483,647 minor units (integer columns) without making an order', async () => {
     // 2 extras × 2 000 000 000 = 4 000 000 000 > 2 147 483 647 (2^31 − 1, PostgreSQL integer maximum)
     const p = await payingClient({ allowance: 1, picks: 3, extraPriceMinor: 2_000_000_000, currency: 'JPY', taxRateBp: 0, taxMode: 'exclusive' });
