@@ -6,7 +6,7 @@ export default {
     extend: {
       colors: {
         paper: { DEFAULT: '#f7f3ec', deep: '#efe8dc', edge: '#ddd3c3' },
-        ink: { DEFAULT: '#1f2a30', soft: '#44525a', faint: '#6b777d' },
+        ink: { DEFAULT: '#1f2a30', soft: '#44525a', faint: '#5f6b71' },
         clay: { DEFAULT: '#a4492b', dark: '#7e3520', light: '#e9c9b9' },
         moss: { DEFAULT: '#3f6b4a', light: '#d5e6d7' },
         amber: { DEFAULT: '#8a5a00', light: '#f6e3b8' },
