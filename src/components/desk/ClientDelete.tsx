@@ -35,7 +35,7 @@ export default function ClientDelete({ clientId, name, shoots, activeShoots }: P
     <div className="space-y-3">
       <p className="text-ink-soft">
         {activeShoots > 0
-          ? `${name} has ${activeShoots} shoot${activeShoots === 1 ? '' : 's'} not yet archived. Archive them first; then the client can be removed.`
+          ? `${name} has ${activeShoots === 1 ? 'a shoot' : `${activeShoots} shoots`} not yet archived. Archive ${activeShoots === 1 ? 'it' : 'them'} first; then the client can be removed.`
           : shoots > 0
             ? `All of ${name}'s shoots are archived. Removing the client archives this record and clears the phone and notes; deleting the archived shoots removes their photos and records.`
             : `${name} has no shoots. Removing the client deletes this record for good.`}

@@ -120,7 +120,7 @@ function Table({ initial, canCreate }: Props) {
   const columns = useMemo(() => {
     const h = createColumnHelper<DeskShootRow>();
     const cols = [
-      h.accessor('clientName', { id: 'client', header: SORT_LABEL.client, cell: (c) => <span className="font-semibold text-ink">{c.getValue()}</span> }),
+      h.accessor('clientName', { id: 'client', header: SORT_LABEL.client, cell: (c) => <span className="whitespace-nowrap font-semibold text-ink">{c.getValue()}</span> }),
       h.accessor('shotOn', { id: 'date', header: SORT_LABEL.date, cell: (c) => <span className="whitespace-nowrap">{formatDay(c.getValue())}</span> }),
       h.accessor('title', {
         id: 'title',
@@ -218,7 +218,7 @@ function Table({ initial, canCreate }: Props) {
             />
           </div>
         </div>
-        <div className="basis-44">
+        <div className="basis-full sm:basis-44">
           <label className="label" htmlFor={`${ids}-stage`}>Stage</label>
           <select id={`${ids}-stage`} className="field" value={query.stage} onChange={(e) => go({ stage: e.target.value as DeskStageFilter })}>
             {(['active', 'all', ...STAGES] as DeskStageFilter[]).map((s) => (
@@ -254,11 +254,11 @@ function Table({ initial, canCreate }: Props) {
       <div className="flex flex-wrap items-center justify-between gap-2 text-caption text-ink-soft" aria-live="polite">
         <p>
           {page.total === 0
-            ? 'No shoots match.'
+            ? 'No shoots match'
             : page.total <= page.pageSize
               ? plural(page.total, 'shoot')
               : `Shoots ${first}–${last} of ${page.total}`}
-          {query.q ? <> for “{query.q}”</> : null}
+          {query.q ? <> {page.total === 0 ? '' : 'matching '}“{query.q}”</> : null}
           {query.stage !== 'active' ? <> · {STAGE_FILTER_LABEL[query.stage]}</> : null}
         </p>
         <p className={isFetching ? 'opacity-100' : 'opacity-0'} aria-hidden={!isFetching}>Updating…</p>
@@ -293,7 +293,7 @@ function Table({ initial, canCreate }: Props) {
               </caption>
               <thead>
                 {table.getHeaderGroups().map((hg) => (
-                  <tr key={hg.id} className="border-b border-paper-edge bg-paper-deep/60">
+                  <tr key={hg.id} className="border-b border-paper-edge bg-paper-deep">
                     {hg.headers.map((header, i) => {
                       const id = header.column.id as DeskSort;
                       const isSorted = query.sort === id;
@@ -353,19 +353,21 @@ function Table({ initial, canCreate }: Props) {
                 <a href={`/desk/shoots/${r.id}`} className="card block p-4 text-ink no-underline active:bg-paper">
                   <span className="flex items-start justify-between gap-3">
                     <span className="min-w-0">
-                      <span className="block truncate font-semibold">{r.clientName}</span>
+                      <span className="block truncate font-semibold" data-testid="card-client">{r.clientName}</span>
                       <span className="block truncate text-clay-dark">{r.title}</span>
                     </span>
                     <StageChip stage={r.stage} />
                   </span>
-                  <span className="mt-3 grid grid-cols-2 gap-x-4 gap-y-1 text-caption text-ink-soft">
+                  <span className="mt-3 grid grid-cols-3 gap-x-3 gap-y-2 border-t border-paper-edge pt-3 text-caption text-ink-soft">
                     <Fact label="Date">{formatDay(r.shotOn)}</Fact>
                     <Fact label="Frames">{r.frames}</Fact>
                     <Fact label="Picks">
                       <PicksText picks={r.picks} allowance={r.allowance} />
                     </Fact>
                     {showMoney ? <Fact label="Extras paid"><MoneyText row={r} /></Fact> : null}
-                    <Fact label="Proof expiry"><ExpiryText row={r} /></Fact>
+                    <span className={showMoney ? 'col-span-2' : 'col-span-3'}>
+                      <Fact label="Proof expiry"><ExpiryText row={r} /></Fact>
+                    </span>
                   </span>
                 </a>
               </li>
@@ -380,7 +382,7 @@ function Table({ initial, canCreate }: Props) {
                   {DESK_PAGE_SIZES.map((n) => <option key={n} value={n}>{n}</option>)}
                 </select>
               </div>
-              <div className="flex items-center gap-2">
+              <div className={`flex items-center gap-2 ${page.pageCount > 1 ? '' : 'hidden'}`}>
                 <button type="button" className="btn-quiet" disabled={page.page <= 1} onClick={() => go({ page: page.page - 1 })}>
                   <span aria-hidden="true">←</span> Previous
                 </button>

@@ -161,7 +161,7 @@ export default function StudioSettingsForm({ initial }: Props) {
 
   return (
     <form onSubmit={onSubmit} noValidate className="flex flex-col gap-6" aria-label="Studio settings">
-      <Section title="Studio" lead="Clients see these on their gallery and in every e-mail.">
+      <Section id="studio" title="Studio" lead="Clients see these on their gallery and in every e-mail.">
         <div className="grid gap-4 sm:grid-cols-2">
           <div className="sm:col-span-2">{field('name', 'Studio name', <input className="field" autoComplete="organization" {...aria('name')} {...register('name')} />)}</div>
           {field('contactEmail', 'Contact e-mail', <input className="field" type="email" autoComplete="email" {...aria('contactEmail')} {...register('contactEmail')} />)}
@@ -169,7 +169,7 @@ export default function StudioSettingsForm({ initial }: Props) {
         </div>
       </Section>
 
-      <Section title="Brand colour" lead="Used for buttons in your clients’ gallery and e-mails, with white text on it.">
+      <Section id="brand" title="Brand colour" lead="Used for buttons in your clients’ gallery and e-mails, with white text on it.">
         <div className="grid gap-5 md:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
           <div className="flex flex-col gap-3">
             <div className="flex items-end gap-3">
@@ -221,9 +221,9 @@ export default function StudioSettingsForm({ initial }: Props) {
         </div>
       </Section>
 
-      <Section title="Watermark" lead="Tiled diagonally over every proof a client sees; finals never carry it.">
-        <div className="grid gap-5 md:grid-cols-[minmax(0,1fr)_16rem]">
-          <div className="flex flex-col gap-4">
+      <Section id="watermark" title="Watermark" lead="Tiled diagonally over every proof a client sees; finals never carry it.">
+        <div className="grid gap-5 md:grid-cols-[minmax(0,1fr)_18rem]">
+          <div className="flex min-w-0 flex-col gap-4">
             {field('watermarkText', 'Watermark text', <input className="field" maxLength={WATERMARK_TEXT_MAX} {...aria('watermarkText')} {...register('watermarkText')} />, hasLogo ? 'Kept for when you remove the logo.' : 'Your studio’s name works well.')}
             <div>
               <label className="label" htmlFor={`${ids}-watermarkOpacityPct`}>Opacity <span className="tabular-nums normal-case text-ink">{Number.isFinite(opacityPct) ? `${opacityPct}%` : ''}</span></label>
@@ -231,12 +231,17 @@ export default function StudioSettingsForm({ initial }: Props) {
               <div className="flex justify-between text-caption text-ink-faint" aria-hidden="true"><span>{OPACITY_MIN_PCT}% faint</span><span>{OPACITY_MAX_PCT}% strong</span></div>
               {err('watermarkOpacityPct')}
             </div>
+          </div>
+          <div className="mx-auto w-full max-w-[18rem] md:row-span-2">
+            <WatermarkPreview text={watermarkText} opacityPct={opacityPct} hasLogo={hasLogo} logoVersion={logoVersion} />
+          </div>
+          <div className="flex min-w-0 flex-col gap-4">
             <div className="rounded-card border border-dashed border-paper-edge p-3">
               <p className="label">Logo instead of text (optional)</p>
               <p className="text-caption text-ink-soft">A PNG of at most 2 MB, ideally white on a transparent background.</p>
               <div className="mt-2 flex flex-wrap items-center gap-2">
-                <label className={`btn-quiet cursor-pointer ${isLogoBusy ? 'pointer-events-none opacity-50' : ''}`}>
-                  {hasLogo ? 'Replace logo' : 'Upload logo'}
+                <label className={`btn-quiet cursor-pointer focus-within:outline focus-within:outline-2 focus-within:outline-clay ${isLogoBusy ? 'pointer-events-none opacity-50' : ''}`}>
+                  {isLogoBusy ? 'Working…' : hasLogo ? 'Replace logo' : 'Upload logo'}
                   <input
                     ref={fileRef}
                     type="file"
@@ -256,11 +261,10 @@ export default function StudioSettingsForm({ initial }: Props) {
               New watermark settings apply to frames processed from now on; proofs already made keep the watermark they were made with.
             </p>
           </div>
-          <WatermarkPreview text={watermarkText} opacityPct={opacityPct} hasLogo={hasLogo} logoVersion={logoVersion} />
         </div>
       </Section>
 
-      <Section title="Package defaults" lead="Filled in on every new shoot; each shoot can change them.">
+      <Section id="package" title="Package defaults" lead="Filled in on every new shoot; each shoot can change them.">
         <div className="grid gap-4 sm:grid-cols-2">
           {field('defaultAllowance', 'Retouches included', <input className="field" type="number" min={0} max={1000} step={1} inputMode="numeric" {...aria('defaultAllowance')} {...register('defaultAllowance')} />)}
           {field(
@@ -298,7 +302,7 @@ export default function StudioSettingsForm({ initial }: Props) {
         <p className="notice-caution mt-4 text-caption" role="note">{TAX_CAUTION}</p>
       </Section>
 
-      <Section title="Expiry and retention" lead="How long links work, and how long shoots are kept.">
+      <Section id="retention" title="Expiry and retention" lead="How long links work, and how long shoots are kept.">
         <div className="grid gap-4 sm:grid-cols-3">
           {field('proofExpiryDays', 'Proofs open for (days)', <input className="field" type="number" min={1} max={365} inputMode="numeric" {...aria('proofExpiryDays')} {...register('proofExpiryDays')} />, 'From sending the viewing link.')}
           {field('downloadExpiryDays', 'Downloads open for (days)', <input className="field" type="number" min={1} max={730} inputMode="numeric" {...aria('downloadExpiryDays')} {...register('downloadExpiryDays')} />, 'From the hand-off.')}
@@ -317,10 +321,10 @@ export default function StudioSettingsForm({ initial }: Props) {
   );
 }
 
-function Section({ title, lead, children }: { title: string; lead: string; children: ReactNode }) {
+function Section({ id, title, lead, children }: { id: string; title: string; lead: string; children: ReactNode }) {
   return (
-    <section className="card p-5 sm:p-6">
-      <h2 className="text-title">{title}</h2>
+    <section id={id} className="card scroll-mt-6 p-5 sm:p-6" aria-labelledby={`${id}-heading`}>
+      <h2 id={`${id}-heading`} className="text-title">{title}</h2>
       <p className="mb-4 mt-1 text-ink-soft">{lead}</p>
       {children}
     </section>

@@ -131,31 +131,32 @@ function sampleRaw(): Promise<Buffer> {
   sampleFrame ??= sharp(Buffer.from(`
     <svg xmlns="http://www.w3.org/2000/svg" width="${PREVIEW_WIDTH}" height="${PREVIEW_HEIGHT}" viewBox="0 0 640 800">
       <defs>
-        <radialGradient id="bg" cx="0.38" cy="0.3" r="0.85">
-          <stop offset="0" stop-color="#efe6da"/><stop offset="0.55" stop-color="#b9ab9a"/><stop offset="1" stop-color="#5d554d"/>
+        <radialGradient id="bg" cx="0.3" cy="0.28" r="0.95">
+          <stop offset="0" stop-color="#f2ebe1"/><stop offset="0.5" stop-color="#b7a999"/><stop offset="1" stop-color="#3f3a35"/>
         </radialGradient>
-        <radialGradient id="skin" cx="0.4" cy="0.35" r="0.7">
-          <stop offset="0" stop-color="#f1cfb5"/><stop offset="0.7" stop-color="#cf9f82"/><stop offset="1" stop-color="#9c6f57"/>
+        <linearGradient id="key" x1="0" y1="0" x2="1" y2="0.2">
+          <stop offset="0" stop-color="#f3d6c0"/><stop offset="0.55" stop-color="#c8957a"/><stop offset="1" stop-color="#6e4b3c"/>
+        </linearGradient>
+        <linearGradient id="coat" x1="0" y1="0" x2="1" y2="0.6">
+          <stop offset="0" stop-color="#56636c"/><stop offset="0.6" stop-color="#262f35"/><stop offset="1" stop-color="#111518"/>
+        </linearGradient>
+        <linearGradient id="hair" x1="0" y1="0" x2="1" y2="1">
+          <stop offset="0" stop-color="#6b4630"/><stop offset="1" stop-color="#1c120c"/>
+        </linearGradient>
+        <radialGradient id="vignette" cx="0.5" cy="0.45" r="0.75">
+          <stop offset="0.6" stop-color="#000" stop-opacity="0"/><stop offset="1" stop-color="#000" stop-opacity="0.45"/>
         </radialGradient>
-        <linearGradient id="coat" x1="0" y1="0" x2="1" y2="1">
-          <stop offset="0" stop-color="#3b4a55"/><stop offset="1" stop-color="#161d22"/>
-        </linearGradient>
-        <linearGradient id="hair" x1="0" y1="0" x2="0.3" y2="1">
-          <stop offset="0" stop-color="#5a3a26"/><stop offset="1" stop-color="#24160e"/>
-        </linearGradient>
       </defs>
       <rect width="640" height="800" fill="url(#bg)"/>
-      <path d="M70 800 C 90 640, 190 575, 320 565 C 450 575, 550 640, 570 800 Z" fill="url(#coat)"/>
-      <path d="M282 470 L 358 470 L 366 590 C 340 610, 300 610, 274 590 Z" fill="#c2917a"/>
-      <path d="M300 588 L 320 650 L 340 588 Z" fill="#f4efe6"/>
-      <ellipse cx="320" cy="385" rx="102" ry="132" fill="url(#skin)"/>
-      <path d="M214 380 C 200 250, 270 212, 330 214 C 410 216, 446 276, 428 392 C 418 320, 380 292, 322 290 C 262 292, 226 320, 214 380 Z" fill="url(#hair)"/>
-      <ellipse cx="283" cy="388" rx="13" ry="7" fill="#3a2a22"/>
-      <ellipse cx="357" cy="388" rx="13" ry="7" fill="#3a2a22"/>
-      <path d="M292 462 C 308 474, 334 474, 350 462" stroke="#9a5a4c" stroke-width="6" fill="none" stroke-linecap="round"/>
-      <ellipse cx="470" cy="180" rx="120" ry="60" fill="#ffffff" opacity="0.25"/>
+      <path d="M40 800 C 70 650, 180 580, 318 570 C 460 578, 566 650, 600 800 Z" fill="url(#coat)"/>
+      <path d="M276 452 C 284 520, 282 560, 270 590 C 300 612, 344 612, 372 590 C 358 560, 354 520, 362 452 Z" fill="url(#key)"/>
+      <path d="M268 588 C 296 640, 344 640, 374 588 L 380 600 C 350 660, 292 660, 262 600 Z" fill="#e9e2d6"/>
+      <ellipse cx="320" cy="372" rx="104" ry="134" fill="url(#key)"/>
+      <path d="M206 392 C 180 250, 262 196, 330 198 C 420 200, 462 270, 440 410 C 452 330, 410 276, 318 272 C 244 276, 210 320, 206 392 Z" fill="url(#hair)"/>
+      <path d="M214 360 C 196 470, 214 560, 250 600 C 232 520, 226 440, 232 380 Z" fill="url(#hair)"/>
+      <rect width="640" height="800" fill="url(#vignette)"/>
     </svg>`))
-    .blur(1.2)
+    .blur(2)
     .removeAlpha()
     .raw()
     .toBuffer();
