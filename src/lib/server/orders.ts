@@ -529,11 +529,12 @@ export async function releaseCheckout(client: SessionClient): Promise<void> {
     const shoot = await trx('shoots').where({ id: client.shootId, studio_id: client.studioId }).forUpdate().first();
     if (!shoot) throw notFound('No such shoot.');
     if (pending) await failOrder(trx, pending, 'The client chose to change their picks.');
-    const paid = await trx('orders').where({ shoot_id: shoot.id }).whereIn('state', ['paid', 'pending']).first('id');
+    const paid = await trx('orders').where({ shoot_id: shoot.id }).where({ state: 'paid' }).first('id');
     if (paid) throw conflict('Your extra retouches are already paid for, so your picks stay as they are.');
-    const tried = await trx('orders').where({ shoot_id: shoot.id }).first('id');
-    // Unlocking picks that never went to payment is the gallery's business, not this one's.
-    if (!tried) throw conflict('There is no payment to step back from.');
+    // Only picks held back for payment are this module's to unlock; picks that went to the studio
+    // without extras are reopened by the studio.
+    const extras = figuresFor(shoot, await countPicks(shoot.id, shoot.studio_id, trx)).extras;
+    if (extras === 0 || shoot.stage !== 'proofing') throw conflict('Your picks are with the studio; ask them to reopen the picks if you want to change them.');
     await trx('shoots')
       .where({ id: shoot.id })
       .whereIn('stage', ['proofing', 'picks_in'])
