@@ -81,7 +81,7 @@ export async function decodeUpright(buf: Buffer, width: number, height: number, 
   try {
     const { data, info } = await sharp(buf, DECODE_OPTIONS)
       .rotate()
-      .resize(width, height, { fit: 'inside', withoutEnlargement: true })
+      .resize(width, height, { fit: 'inside', withoutEnlargement: true, kernel: 'cubic' })
       .flatten({ background: '#ffffff' })
       .toColourspace('srgb')
       .raw({ depth: 'uchar' })

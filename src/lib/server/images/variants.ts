@@ -2,10 +2,10 @@ import { createHash } from 'node:crypto';
 import sharp from 'sharp';
 import { ev100 } from '../../exposure';
 import { RATIOS, SOCIAL_SIZES, cropRect, normaliseFocus, type FocusPoint, type SocialRatioKey } from '../../ratios';
-import { measureCull, type CullMeasures, type RawImage } from './cull';
+import { fitInside, measureCull, resizeRaw, smallCopy, type CullMeasures, type RawImage } from './cull';
 import { decodeUpright, inspectImage } from './decode';
 import { readFrameExif, type FrameExif } from './exif';
-import { watermarkOverlay, type WatermarkSpec } from './watermark';
+import { blendOverlay, watermarkOverlay, type WatermarkSpec } from './watermark';
 
 export type VariantKind = 'thumb' | 'proof' | SocialRatioKey;
 
@@ -52,11 +52,6 @@ async function encode(kind: VariantKind, pipeline: sharp.Sharp, quality: number)
   return { kind, data, width: info.width, height: info.height, contentHash: createHash('sha256').update(data).digest('hex') };
 }
 
-function fitInside(width: number, height: number, edge: number): { width: number; height: number } {
-  const scale = Math.min(1, edge / Math.max(width, height));
-  return { width: Math.max(1, Math.round(width * scale)), height: Math.max(1, Math.round(height * scale)) };
-}
-
 /** The three social crops around the focus point, at their usual pixel size or smaller when the frame is. */
 export async function cropsFromIntermediate(img: RawImage, focus: FocusPoint): Promise<VariantOut[]> {
   return Promise.all(
@@ -73,19 +68,24 @@ export async function cropsFromIntermediate(img: RawImage, focus: FocusPoint): P
   );
 }
 
-/** A watermarked proof: long edge PROOF_EDGE, sRGB, no metadata. */
-export async function proofFromIntermediate(img: RawImage, watermark: WatermarkSpec): Promise<VariantOut> {
+/** The proof-sized copy of the intermediate: long edge PROOF_EDGE, unwatermarked. */
+export function proofBase(img: RawImage): Promise<RawImage> {
   const size = fitInside(img.width, img.height, PROOF_EDGE);
-  const overlay = await watermarkOverlay(watermark, size.width, size.height);
-  // Resize first, to raw, so the tile lands on the final pixel grid.
-  const { data, info } = await fromRaw(img).resize(size.width, size.height, { fit: 'fill' }).raw().toBuffer({ resolveWithObject: true });
-  let pipeline = sharp(data, { raw: { width: info.width, height: info.height, channels: 3 } });
+  return resizeRaw(img, size.width, size.height);
+}
+
+/**
+ * A watermarked proof from its proof-sized base: sRGB, no metadata. With `consumeBase` the
+ * watermark is drawn into the base's own pixels (saving a copy); nothing may read them afterwards.
+ */
+export async function proofFromBase(base: RawImage, watermark: WatermarkSpec, consumeBase = false): Promise<VariantOut> {
+  const overlay = await watermarkOverlay(watermark, base.width, base.height);
+  let pixels = base.data;
   if (overlay) {
-    pipeline = pipeline.composite([
-      { input: overlay.data, raw: { width: overlay.width, height: overlay.height, channels: overlay.channels }, blend: 'over' },
-    ]);
+    if (!consumeBase) pixels = Buffer.from(base.data);
+    blendOverlay(pixels, base.width, base.height, overlay);
   }
-  return encode('proof', pipeline, PROOF_QUALITY);
+  return encode('proof', fromRaw({ ...base, data: pixels }), PROOF_QUALITY);
 }
 
 /**
@@ -93,7 +93,7 @@ export async function proofFromIntermediate(img: RawImage, watermark: WatermarkS
  * tones, saturation, edges) on a small copy.
  */
 export async function findFocus(img: RawImage): Promise<FocusPoint> {
-  const side = 256;
+  const side = Math.min(256, img.width, img.height);
   const scale = side / Math.min(img.width, img.height);
   const scaledW = Math.round(img.width * scale);
   const scaledH = Math.round(img.height * scale);
@@ -139,14 +139,19 @@ export async function buildFrameVariants(input: FrameVariantsInput): Promise<Fra
     readFrameExif(input.original),
     decodeUpright(input.original, size.width, size.height, input.fileName),
   ]);
-  const focus = input.focus ? normaliseFocus(input.focus) : await findFocus(img);
-  const thumbSize = fitInside(img.width, img.height, THUMB_EDGE);
-  const [cull, thumb, proof, crops] = await Promise.all([
-    measureCull(img),
-    encode('thumb', fromRaw(img).resize(thumbSize.width, thumbSize.height, { fit: 'fill' }), THUMB_QUALITY),
-    proofFromIntermediate(img, input.watermark),
+  // Everything but the crops comes from the proof-sized copy, which is cheaper to scan and resize.
+  const base = await proofBase(img);
+  const small = await smallCopy(base);
+  const focus = input.focus ? normaliseFocus(input.focus) : await findFocus(small);
+  const thumbSize = fitInside(base.width, base.height, THUMB_EDGE);
+  const [cull, thumb, crops] = await Promise.all([
+    measureCull(base, small),
+    encode('thumb', fromRaw(base).resize(thumbSize.width, thumbSize.height, { fit: 'fill' }), THUMB_QUALITY),
     cropsFromIntermediate(img, focus),
   ]);
+  // Nothing reads the base any more, so the watermark can go straight into it, unless a small
+  // frame made the base the intermediate itself.
+  const proof = await proofFromBase(base, input.watermark, base !== img);
   const exposure = exif.fNumber !== null && exif.exposureTimeS !== null ? ev100(exif.fNumber, exif.exposureTimeS) : null;
   return {
     width: facts.width,
