@@ -96,10 +96,11 @@ export async function processFrame(frameId: string, isLastTry: boolean) {
  * with any variants a twin's race left behind.
  */
 async function reject(frame: { id: string; object_key: string }, message: string) {
-  await db()('frames').where({ id: frame.id }).update({ state: 'failed', error: message, claimed_at: null, sha256: null });
+  // Storage first: once a frame reads 'failed', nothing of it is left behind.
   const leftover = await db()('frame_variants').where({ frame_id: frame.id }).delete().returning('object_key');
   await deleteUnusedVariants(leftover.map((r: { object_key: string }) => r.object_key));
   await deleteObject(frame.object_key).catch((e) => console.error('[fillcard] could not delete rejected original:', e));
+  await db()('frames').where({ id: frame.id }).update({ state: 'failed', error: message, claimed_at: null, sha256: null });
 }
 
 /** Variant objects are content-addressed and may be shared by identical frames: only unreferenced ones go. */

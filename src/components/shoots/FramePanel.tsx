@@ -170,13 +170,16 @@ export default function FramePanel({ frames, index, canEdit, onClose, onNavigate
                 <ul className="mt-3 flex flex-wrap items-end gap-3" data-testid="crops">
                   {SOCIAL.map((r) => (
                     <li key={r.key} className="text-center">
-                      <span className="relative block overflow-hidden rounded-card border border-paper-edge bg-paper-deep" style={{ height: 150, width: Math.round((150 * r.w) / r.h) }}>
+                      <span
+                        className="relative block h-[104px] overflow-hidden rounded-card border border-paper-edge bg-paper-deep sm:h-[136px]"
+                        style={{ aspectRatio: `${r.w} / ${r.h}` }}
+                      >
                         {frame.urls[r.key] ? (
                           <img
                             src={frame.urls[r.key]}
                             alt={`${r.label} crop`}
-                            width={Math.round((150 * r.w) / r.h)}
-                            height={150}
+                            width={Math.round((136 * r.w) / r.h)}
+                            height={136}
                             className={['h-full w-full object-cover', frame.cropsPending ? 'opacity-40' : ''].join(' ')}
                             data-crop={r.key}
                           />
@@ -276,7 +279,7 @@ function FocusEditor({ frame, focus, editable, onMove }: { frame: FrameDto; focu
   }
 
   return (
-    <div className="relative mx-auto" style={{ aspectRatio: `${w} / ${h}`, width: `min(100%, calc(62vh * ${w / h}))` }}>
+    <div className="relative mx-auto" style={{ aspectRatio: `${w} / ${h}`, width: `min(100%, calc(54vh * ${w / h}))` }}>
       <img src={frame.urls.proof} alt={`Proof of ${frame.name}`} width={w} height={h} className="absolute inset-0 h-full w-full rounded-card object-contain" draggable={false} />
       <div
         ref={areaRef}
@@ -298,8 +301,10 @@ function FocusEditor({ frame, focus, editable, onMove }: { frame: FrameDto; focu
           dragging.current = null;
         }}
       >
-        {SOCIAL.map((r) => {
+        {SOCIAL.map((r, i) => {
           const rect = cropRect(w, h, r.w, r.h, focus);
+          // Crops often share an edge; each label sits in its own corner so none hides another.
+          const corner = ['left-1 top-1', 'bottom-1 left-1', 'right-1 top-1'][i];
           return (
             <span
               key={r.key}
@@ -307,7 +312,7 @@ function FocusEditor({ frame, focus, editable, onMove }: { frame: FrameDto; focu
               className="pointer-events-none absolute border border-white/80 shadow-[0_0_0_1px_rgba(31,42,48,0.45)]"
               style={{ left: `${(rect.left / w) * 100}%`, top: `${(rect.top / h) * 100}%`, width: `${(rect.width / w) * 100}%`, height: `${(rect.height / h) * 100}%` }}
             >
-              <span className="absolute left-1 top-1 rounded bg-ink/70 px-1 text-[0.65rem] font-semibold leading-4 text-white">{r.label.split(' ')[0]}</span>
+              <span className={`absolute ${corner} rounded bg-ink/70 px-1 text-[0.65rem] font-semibold leading-4 text-white`}>{r.label.split(' ')[0]}</span>
             </span>
           );
         })}

@@ -50,7 +50,7 @@ export async function signUploadRequest(prefix: string, makeKey: (ext: string) =
     const name = `“${cleanFileName(req.fileName)}”`;
     const ext = extensionOf(req.fileName);
     if (!UPLOAD_LIMITS.extensions.includes(ext)) {
-      throw new HttpError(415, `${name} is not a photo Fillcard takes: upload JPEG, PNG, TIFF or WebP files.`);
+      throw new HttpError(415, `${name} cannot be uploaded: Fillcard takes JPEG, PNG, TIFF and WebP files. Please export it as JPEG.`);
     }
     if (req.size === 0) throw new HttpError(422, `${name} is empty (0 bytes). Please export it again.`);
     if (req.size > UPLOAD_LIMITS.maxBytes) throw tooLarge(name, req.size);
