@@ -228,12 +228,20 @@ export async function syntheticPortrait(opts: SyntheticPortraitOptions): Promise
   return jpeg;
 }
 
+/** The extension ExifTool expects for these bytes (it writes by file type). */
+function extensionFor(image: Buffer): string {
+  if (image[0] === 0x89 && image.toString('latin1', 1, 4) === 'PNG') return 'png';
+  if (image.toString('latin1', 0, 4) === 'RIFF' && image.toString('latin1', 8, 12) === 'WEBP') return 'webp';
+  if (image.toString('latin1', 0, 4) === 'II*\0' || image.toString('latin1', 0, 4) === 'MM\0*') return 'tif';
+  return 'jpg';
+}
+
 /** Writes tags with ExifTool through a temporary file; the file is removed afterwards. */
-export async function writeExif(jpeg: Buffer, tags: Record<string, string | number>): Promise<Buffer> {
+export async function writeExif(image: Buffer, tags: Record<string, string | number>): Promise<Buffer> {
   const dir = await mkdtemp(path.join(os.tmpdir(), 'fillcard-exif-'));
-  const file = path.join(dir, 'frame.jpg');
+  const file = path.join(dir, `frame.${extensionFor(image)}`);
   try {
-    await writeFile(file, jpeg);
+    await writeFile(file, image);
     const args = ['-overwrite_original', '-q'];
     for (const [tag, value] of Object.entries(tags)) {
       if (!/^[A-Za-z0-9:_-]+$/.test(tag)) throw new RangeError(`not an ExifTool tag name: ${tag}`);

@@ -1,3 +1,4 @@
+import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { syntheticPortrait, writeExif } from '../../../scripts/lib/synthetic-portrait';
 import { evAtIso } from '../../../src/lib/exposure';
@@ -137,6 +138,29 @@ describe('EXIF against ExifTool', () => {
     expect(built.ev100).toBeNull();
     expect(built.orientation).toBe(1);
   });
+
+  for (const format of ['png', 'webp', 'tiff'] as const) {
+    it(`a ${format.toUpperCase()} frame: EXIF as ExifTool reads it`, async () => {
+      const converted = await sharp(plain).toFormat(format).toBuffer();
+      const tagged = await writeExif(converted, {
+        Make: 'Northlight Optics',
+        Model: 'NL-7',
+        ExposureTime: '1/125',
+        FNumber: 8,
+        ISO: 200,
+        'EXIF:Flash': 16,
+      });
+      const ref = await exiftoolRead(tagged, [], format === 'tiff' ? 'tif' : format);
+      const ours = await readFrameExif(tagged);
+      expect(ref.Make).toBe('Northlight Optics');
+      expect(ours.cameraMake).toBe(ref.Make);
+      expect(ours.cameraModel).toBe(ref.Model);
+      expect(ours.fNumber).toBe(ref.FNumber);
+      expect(ours.exposureTimeS).toBeCloseTo(ref.ExposureTime as number, 12);
+      expect(ours.iso).toBe(ref.ISO);
+      expect(ours.flashFired).toBe(((ref.Flash as number) & 1) === 1);
+    });
+  }
 
   it('unreadable input gives empty EXIF rather than throwing', async () => {
     const ours = await readFrameExif(Buffer.from('not a photo at all'));

@@ -1,9 +1,12 @@
+import { execFile } from 'node:child_process';
+import { readFileSync } from 'node:fs';
+import { promisify } from 'node:util';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { syntheticPortrait, writeExif } from '../../../scripts/lib/synthetic-portrait';
 import { RATIOS } from '../../../src/lib/ratios';
 import { buildFinalVariants, scrubJpegExif, type FinalVariants } from '../../../src/lib/server/images';
-import { convertToRgb, exiftoolRead, identify, meanAbsDiff, removeTempFiles } from '../../fixtures/image-tools';
+import { EXIFTOOL, convertToRgb, exiftoolRead, identify, meanAbsDiff, removeTempFiles, tempFile } from '../../fixtures/image-tools';
 
 // Invented camera; a made-up position far from anyone.
 const CAMERA_AND_PLACE = {
@@ -25,6 +28,14 @@ const CAMERA_AND_PLACE = {
 };
 
 afterAll(removeTempFiles);
+
+/** Embeds `preview` as the EXIF thumbnail with ExifTool's ThumbnailImage<=file. */
+async function addPreview(jpeg: Buffer, preview: Buffer): Promise<Buffer> {
+  const file = tempFile(jpeg);
+  const previewFile = tempFile(preview);
+  await promisify(execFile)(EXIFTOOL, ['-overwrite_original', `-ThumbnailImage<=${previewFile}`, file]);
+  return readFileSync(file);
+}
 
 function gpsTags(tags: Record<string, unknown>): string[] {
   return Object.keys(tags).filter((k) => /^GPS/.test(k));
@@ -136,6 +147,21 @@ describe('finals: orientation, colour and other formats', () => {
     const png = await sharp({ create: { width: 500, height: 400, channels: 4, background: { r: 0, g: 0, b: 0, alpha: 0 } } }).png().toBuffer();
     const built = await buildFinalVariants(png, { x: 0.5, y: 0.5 }, 'final.png');
     expect(await identify(built.full, '%m %w %h %[fx:mean]')).toMatch(/^JPEG 500 400 (0\.99|1)/);
+  });
+});
+
+describe('embedded preview', () => {
+  it('the small preview a camera or editor embeds is dropped: it would show the frame before retouching', async () => {
+    const tagged = await writeExif(await syntheticPortrait({ width: 800, height: 600, seed: 33 }), { Make: 'Northlight Optics' });
+    const preview = await sharp(await syntheticPortrait({ width: 160, height: 120, seed: 34 })).jpeg().toBuffer();
+    const withPreview = await addPreview(tagged, preview);
+    expect((await exiftoolRead(withPreview)).ThumbnailLength).toBe(preview.length);
+    const built = await buildFinalVariants(withPreview, { x: 0.5, y: 0.5 });
+    const tags = await exiftoolRead(built.full, ['-a']);
+    expect(tags.ThumbnailLength).toBeUndefined();
+    expect(tags.ThumbnailImage).toBeUndefined();
+    expect(tags.Make).toBe('Northlight Optics');
+    expect(built.full.includes(preview.subarray(200, 264))).toBe(false);
   });
 });
 

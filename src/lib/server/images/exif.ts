@@ -1,4 +1,6 @@
 import exifr from 'exifr';
+import sharp from 'sharp';
+import { sniffImageType } from './signature';
 
 /** Camera settings and capture facts of a frame, as stored with it. */
 export interface FrameExif {
@@ -170,11 +172,22 @@ export async function readFrameExif(buf: Buffer): Promise<FrameExif> {
   if (!buf || buf.length === 0) return { ...EMPTY_EXIF };
   let tags: Record<string, unknown> | undefined;
   try {
-    tags = (await exifr.parse(buf, PARSE_OPTIONS)) as Record<string, unknown> | undefined;
+    // exifr does not read WebP's EXIF chunk; libvips hands it over as a TIFF block instead.
+    tags = (await exifr.parse(sniffImageType(buf.subarray(0, 16)) === 'webp' ? await webpExifBlock(buf) : buf, PARSE_OPTIONS)) as
+      | Record<string, unknown>
+      | undefined;
   } catch {
     tags = undefined;
   }
   return frameExifFromTags(tags);
+}
+
+const EXIF_PREFIX = Buffer.from('Exif\0\0', 'latin1');
+
+async function webpExifBlock(buf: Buffer): Promise<Buffer> {
+  const block = (await sharp(buf, { limitInputPixels: false }).metadata()).exif;
+  if (!block) throw new Error('no EXIF in this WebP');
+  return block.subarray(0, 6).equals(EXIF_PREFIX) ? block.subarray(6) : block;
 }
 
 /** Whether any GPS position survives in a file; used to prove a delivered final carries none. */

@@ -15,7 +15,7 @@ export interface FinalVariants {
   /** Upright pixel size of the final, which `full` keeps. */
   width: number;
   height: number;
-  /** JPEG, sRGB with the profile embedded, camera EXIF kept, GPS removed. */
+  /** JPEG, sRGB with the profile embedded, camera EXIF kept; GPS and the embedded preview removed. */
   full: Buffer;
   /** Full-resolution ratio crops, sRGB with the profile embedded, no EXIF. */
   crops: FinalCrop[];
@@ -44,7 +44,7 @@ export async function buildFinalVariants(final: Buffer, focus: FocusPoint, fileN
       .keepExif()
       .jpeg({ quality: FINAL_QUALITY, chromaSubsampling: '4:4:4' })
       .toBuffer();
-    full = scrubJpegExif(encoded, { dropGps: true, markSrgb: true });
+    full = scrubJpegExif(encoded, { dropGps: true, dropThumbnail: true, markSrgb: true });
   } catch (err) {
     throw decodeFailure(err, fileName);
   }

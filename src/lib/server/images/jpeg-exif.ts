@@ -1,13 +1,15 @@
 /**
  * Edits the EXIF block of a JPEG in place, without re-encoding: removes the GPS directory (and
- * wipes its bytes, so the position cannot be recovered from the file) and can mark the colour
- * space as sRGB. sharp keeps or drops EXIF only as a whole; delivered finals must keep the
+ * wipes its bytes, so the position cannot be recovered from the file), can drop the embedded
+ * preview and can mark the colour space as sRGB. sharp keeps or drops EXIF only as a whole; delivered finals must keep the
  * camera settings but never where the picture was taken.
  */
 
 const TYPE_SIZES: Record<number, number> = { 1: 1, 2: 1, 3: 2, 4: 4, 5: 8, 6: 1, 7: 1, 8: 2, 9: 4, 10: 8, 11: 4, 12: 8, 13: 4 };
 
 const TAG_EXIF_IFD = 0x8769;
+const TAG_THUMB_OFFSET = 0x0201;
+const TAG_THUMB_LENGTH = 0x0202;
 const TAG_GPS_IFD = 0x8825;
 const TAG_COLOR_SPACE = 0xa001;
 
@@ -60,6 +62,18 @@ class TiffView {
     }
     this.bytes.fill(0, ifdOffset, ifdOffset + 2 + list.length * 12 + 4);
   }
+  /** The value of a one-count SHORT or LONG entry. */
+  scalar(e: { at: number; type: number; count: number }): number | null {
+    if (e.count !== 1) return null;
+    if (e.type === 3) return this.u16(e.at + 8);
+    if (e.type === 4) return this.u32(e.at + 8);
+    return null;
+  }
+  setU32(o: number, v: number): void {
+    this.check(o, 4);
+    if (this.little) this.bytes.writeUInt32LE(v, o);
+    else this.bytes.writeUInt32BE(v, o);
+  }
   /** Drops one entry from an IFD by shifting the later ones down; data offsets stay valid. */
   removeEntry(ifdOffset: number, entryAt: number): void {
     const n = this.u16(ifdOffset);
@@ -81,6 +95,23 @@ function scrubTiff(tiff: Buffer, opts: ScrubOptions): void {
       break;
     }
   }
+  if (opts.dropThumbnail) {
+    const nextAt = ifd0 + 2 + view.entries(ifd0).length * 12;
+    const ifd1 = view.u32(nextAt);
+    if (ifd1 > 0) {
+      const list = view.entries(ifd1);
+      const offset = list.find((e) => e.tag === TAG_THUMB_OFFSET);
+      const length = list.find((e) => e.tag === TAG_THUMB_LENGTH);
+      const from = offset ? view.scalar(offset) : null;
+      const size = length ? view.scalar(length) : null;
+      if (from !== null && size !== null && size > 0) {
+        view.check(from, size);
+        view.bytes.fill(0, from, from + size);
+      }
+      view.wipeIfd(ifd1);
+      view.setU32(nextAt, 0);
+    }
+  }
   if (opts.markSrgb) {
     const exifEntry = view.entries(ifd0).find((e) => e.tag === TAG_EXIF_IFD);
     if (exifEntry) {
@@ -93,6 +124,11 @@ function scrubTiff(tiff: Buffer, opts: ScrubOptions): void {
 
 export interface ScrubOptions {
   dropGps: boolean;
+  /**
+   * Drop the small preview cameras and editors embed (IFD1). In a final it would still show the
+   * frame before retouching.
+   */
+  dropThumbnail?: boolean;
   /** Set Exif ColorSpace to sRGB (1); use only when the pixels are sRGB. */
   markSrgb: boolean;
 }
