@@ -40,7 +40,8 @@ export function intermediateSize(width: number, height: number, forCropsOnly = f
     scale = Math.max(scale, SOCIAL_SIZES[r.key].width / crop.width, SOCIAL_SIZES[r.key].height / crop.height);
   }
   scale = Math.min(1, scale, Math.sqrt(MAX_INTERMEDIATE_PIXELS / (width * height)));
-  return { width: Math.max(1, Math.round(width * scale)), height: Math.max(1, Math.round(height * scale)) };
+  // Round up so the decoder's own rounding cannot leave a crop a pixel short of its size.
+  return { width: Math.min(width, Math.ceil(width * scale)), height: Math.min(height, Math.ceil(height * scale)) };
 }
 
 function fromRaw(img: RawImage): sharp.Sharp {
@@ -59,7 +60,8 @@ export async function cropsFromIntermediate(img: RawImage, focus: FocusPoint): P
       const rect = cropRect(img.width, img.height, r.w, r.h, focus);
       const target = SOCIAL_SIZES[r.key];
       let pipeline = fromRaw(img).extract(rect);
-      if (rect.width >= target.width && rect.height >= target.height) {
+      // A crop a hair short of the target (rounding in the decoder) is still brought to it.
+      if (rect.width >= target.width * 0.99 && rect.height >= target.height * 0.99) {
         // rect is the exact ratio to a pixel; 'cover' trims that pixel instead of stretching.
         pipeline = pipeline.resize(target.width, target.height, { fit: 'cover' });
       }
