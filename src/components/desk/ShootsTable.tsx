@@ -200,7 +200,7 @@ function Table({ initial, canCreate }: Props) {
           if (searchText.trim() !== query.q) go({ q: searchText.trim() });
         }}
       >
-        <div className="min-w-0 flex-1 basis-56">
+        <div className="min-w-0 flex-1 basis-full sm:basis-56">
           <label className="label" htmlFor={`${ids}-q`}>Search</label>
           <div className="relative">
             <svg className="pointer-events-none absolute left-3 top-1/2 -translate-y-1/2 text-ink-faint" width="16" height="16" viewBox="0 0 16 16" aria-hidden="true">
@@ -218,7 +218,7 @@ function Table({ initial, canCreate }: Props) {
             />
           </div>
         </div>
-        <div className="basis-full sm:basis-44">
+        <div className="min-w-0 flex-1 basis-36 sm:flex-none sm:basis-44">
           <label className="label" htmlFor={`${ids}-stage`}>Stage</label>
           <select id={`${ids}-stage`} className="field" value={query.stage} onChange={(e) => go({ stage: e.target.value as DeskStageFilter })}>
             {(['active', 'all', ...STAGES] as DeskStageFilter[]).map((s) => (
@@ -227,8 +227,8 @@ function Table({ initial, canCreate }: Props) {
           </select>
         </div>
         {/* Column headers sort on wide screens; on a phone the cards need their own control. */}
-        <div className="flex basis-full items-end gap-2 sm:hidden">
-          <div className="flex-1">
+        <div className="flex min-w-0 flex-1 basis-36 items-end gap-1.5 sm:hidden">
+          <div className="min-w-0 flex-1">
             <label className="label" htmlFor={`${ids}-sort`}>Sort by</label>
             <select id={`${ids}-sort`} className="field" value={query.sort} onChange={(e) => go({ sort: e.target.value as DeskSort, dir: FIRST_DIR[e.target.value as DeskSort] })}>
               {sortOptions.map((s) => <option key={s} value={s}>{SORT_LABEL[s]}</option>)}
@@ -236,12 +236,12 @@ function Table({ initial, canCreate }: Props) {
           </div>
           <button
             type="button"
-            className="btn-quiet"
+            className="btn-quiet !px-3"
             onClick={() => go({ dir: query.dir === 'asc' ? 'desc' : 'asc' })}
             aria-label={`Order: ${query.dir === 'asc' ? 'ascending' : 'descending'}. Switch`}
+            title={query.dir === 'asc' ? 'Ascending' : 'Descending'}
           >
-            <SortArrow dir={query.dir} />
-            {query.dir === 'asc' ? 'Ascending' : 'Descending'}
+            <SortArrow dir={query.dir} large />
           </button>
         </div>
         {isFiltered ? (
@@ -446,9 +446,9 @@ function ExpiryText({ row }: { row: DeskShootRow }) {
   );
 }
 
-function SortArrow({ dir }: { dir: 'asc' | 'desc' | null }) {
+function SortArrow({ dir, large }: { dir: 'asc' | 'desc' | null; large?: boolean }) {
   return (
-    <svg width="10" height="12" viewBox="0 0 10 12" aria-hidden="true" className={dir ? 'text-clay' : 'text-ink-faint/60'}>
+    <svg width={large ? 15 : 10} height={large ? 18 : 12} viewBox="0 0 10 12" aria-hidden="true" className={dir ? 'text-clay' : 'text-ink-faint/60'}>
       <path d="M5 1 8.5 5h-7z" fill="currentColor" opacity={dir === 'desc' ? 0.25 : 1} />
       <path d="M5 11 1.5 7h7z" fill="currentColor" opacity={dir === 'asc' ? 0.25 : 1} />
     </svg>
