@@ -4,7 +4,7 @@
  * confirmed, and sees it paid once the signed webhook has been handled. Then the studio owner sees
  * the order on the shoot's Client & picks tab and refunds it; a retoucher sees no money at all.
  */
-import { test, expect, type Page } from '@playwright/test';
+import { test, expect, type Locator, type Page } from '@playwright/test';
 import { randomUUID } from 'node:crypto';
 import sharp from 'sharp';
 import { makeStudio, makeShoot, PASSWORD } from '../support/factories';
@@ -30,6 +30,11 @@ async function readyFrames(studioId: string, shootId: string, count: number) {
   }
 }
 
+/** Islands answer clicks only once hydrated; Astro drops an island's `ssr` attribute when it is. */
+async function hydrated(scope: Page | Locator) {
+  await expect(scope.locator('astro-island[ssr]')).toHaveCount(0);
+}
+
 async function signIn(page: Page, email: string) {
   await page.goto('/signin');
   await page.getByLabel('E-mail').fill(email);
@@ -51,6 +56,7 @@ test('a client pays for three extra retouches; the studio sees the payment and r
   // The client picks allowance + 3 frames and sends them.
   await page.goto(`/g/${token}`);
   await expect(page).toHaveURL(new RegExp(`/gallery/${shoot.id}$`));
+  await hydrated(page);
   for (let i = 1; i <= 5; i++) {
     const pick = page.getByRole('button', { name: `Pick SITTING_${String(i).padStart(3, '0')}.jpg` });
     await pick.click();
@@ -59,6 +65,7 @@ test('a client pays for three extra retouches; the studio sees the payment and r
   await page.getByRole('link', { name: 'Review & send' }).click();
   await expect(page.getByTestId('review-extras')).toHaveText('3');
   await expect(page.getByTestId('review-total')).toHaveText(total);
+  await hydrated(page);
   await page.getByRole('button', { name: `Send my picks and pay ${total}` }).click();
 
   // Off to the payment stand-in's test page.
@@ -110,6 +117,8 @@ test('a client pays for three extra retouches; the studio sees the payment and r
   await expect(panel).toContainText('Paid');
   await expect(panel).toContainText(total);
   await expect(panel).toContainText('€15.00 (20 %, added)');
+  await panel.scrollIntoViewIfNeeded();
+  await hydrated(panel);
   await panel.getByRole('button', { name: 'Refund…' }).click();
   await expect(panel.getByText(`Refund ${total} to the client’s card? This cannot be undone.`)).toBeVisible();
   await panel.getByRole('button', { name: `Yes, refund ${total}` }).click();

@@ -201,6 +201,8 @@ async function stopStandIn(): Promise<() => Promise<void>> {
   if (procs.length === 0) throw new Error(`no payment stand-in found on port ${PAYMENTS_PORT}`);
   const pids = new Set(procs.map((p) => p.pid));
   const launcher = procs.find((p) => !pids.has(p.ppid)) ?? procs[0];
+  // The test runner that owns the stand-in; a stand-in restarted by an earlier run names it in its env.
+  const anchor = Number(launcher.env.FILLCARD_STANDIN_ANCHOR ?? (launcher.ppid > 1 ? launcher.ppid : 0));
   for (const p of [...procs].reverse()) {
     try { process.kill(p.pid, 'SIGTERM'); } catch { /* already gone */ }
   }
@@ -208,11 +210,11 @@ async function stopStandIn(): Promise<() => Promise<void>> {
   return async () => {
     const log = openSync(path.join(ARTIFACTS, 'payments.log'), 'a');
     const child = spawn(path.join(root, 'node_modules/.bin/tsx'), [path.join(root, 'scripts/stand-ins/payments.ts')], {
-      cwd: root, env: launcher.env, stdio: ['ignore', log, log], detached: true,
+      cwd: root, env: { ...launcher.env, FILLCARD_STANDIN_ANCHOR: String(anchor) }, stdio: ['ignore', log, log], detached: true,
     });
     child.unref();
-    if (launcher.ppid > 1) {
-      const watch = spawn('sh', ['-c', `while kill -0 ${launcher.ppid} 2>/dev/null; do sleep 2; done; kill -TERM -- -${child.pid} 2>/dev/null`], {
+    if (anchor > 1) {
+      const watch = spawn('sh', ['-c', `while kill -0 ${anchor} 2>/dev/null; do sleep 2; done; kill -TERM -${child.pid} 2>/dev/null`], {
         detached: true, stdio: 'ignore',
       });
       watch.unref();
