@@ -6,6 +6,7 @@
 import { describe, it, expect, beforeAll } from 'vitest';
 import { readdirSync } from 'node:fs';
 import path from 'node:path';
+import { randomUUID } from 'node:crypto';
 import { Agent } from '../support/http';
 import { makeStudio, makeShoot, memberAgent, clientAgent } from '../support/factories';
 import { db } from '../../src/lib/server/db';
@@ -36,7 +37,17 @@ describe('access matrix', () => {
     const shootB = await makeShoot(a.studioId);
     const other = await makeShoot(b.studioId);
     const expiring = await makeShoot(a.studioId);
-    world = { shootA: shootA.shoot.id, shootB: shootB.shoot.id, shootOther: other.shoot.id, tokenA: shootA.token, clientA: shootA.client.id };
+    const locked = await makeShoot(a.studioId, { stage: 'picks_in' });
+    // Frames for the frame routes, inserted directly: failed, with keys under their shoot's prefix.
+    const frame = async (studioId: string, shootId: string) => {
+      const id = randomUUID();
+      await db()('frames').insert({ id, studio_id: studioId, shoot_id: shootId, object_key: `studios/${studioId}/shoots/${shootId}/originals/${id}.jpg`, original_name: 'matrix.jpg', bytes: 1000, state: 'failed', error: 'Test frame.' });
+      return id;
+    };
+    world = {
+      shootA: shootA.shoot.id, shootB: shootB.shoot.id, shootOther: other.shoot.id, tokenA: shootA.token, clientA: shootA.client.id,
+      studioA: a.studioId, frameA: await frame(a.studioId, shootA.shoot.id), frameLocked: await frame(a.studioId, locked.shoot.id), frameOther: await frame(b.studioId, other.shoot.id),
+    };
 
     agents.anonymous = new Agent();
     agents.clientA = await clientAgent(shootA.token);

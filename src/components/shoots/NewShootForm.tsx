@@ -256,6 +256,9 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
             </div>
           </div>
         )}
+        <p className="mt-4 text-caption text-ink-faint">
+          Photos of people are personal data. Consent, and model releases for minors, follow your local law.
+        </p>
       </fieldset>
 
       <fieldset className="card p-5 sm:p-6">

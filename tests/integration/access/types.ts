@@ -8,6 +8,10 @@ export interface World {
   shootOther: string; // a shoot of studio B
   tokenA: string;
   clientA: string; // the client of shoot A
+  studioA: string;
+  frameA: string; // a failed frame of shoot A whose original is no longer in storage
+  frameLocked: string; // a frame of studio A's shoot whose picks are in (frames can no longer be removed)
+  frameOther: string; // a failed frame of shootOther (studio B)
 }
 
 export interface Row {

@@ -22,7 +22,9 @@ export const PATCH: APIRoute = route(async (ctx) => {
   const changes: Record<string, unknown> = {};
   if (edit.hidden !== undefined) changes.hidden = edit.hidden;
   if (edit.focus) {
-    if (frame.state !== 'ready') throw conflict('The frame is still being processed.');
+    if (frame.state !== 'ready') {
+      throw conflict(frame.state === 'failed' ? 'This frame could not be built, so it has no crops to move.' : 'The frame is still being processed.');
+    }
     changes.focus_x = edit.focus.x;
     changes.focus_y = edit.focus.y;
     changes.crops_pending = true;
