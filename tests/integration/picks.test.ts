@@ -160,14 +160,16 @@ describe('sending the viewing link', () => {
     const { shoot } = await makeShoot(studio.studioId, { clientEmail });
     await readyFrames(shoot, 2);
     const res = await owner.postForm(`/desk/shoots/${shoot.id}/client`, { intent: 'send', message: 'See you soon' });
-    expect(res.status).toBe(200);
-    const html = await res.text();
+    // Post, then redirect: reloading the page afterwards never sends a second link.
+    expect(res.status).toBe(303);
+    const html = await (await owner.get(res.headers.get('location')!)).text();
     const url = html.match(/value="(http[^"]+\/g\/[A-Za-z0-9_-]+)"/)?.[1];
     expect(url).toBeTruthy();
     expect(html).toContain(`Viewing link sent to ${clientEmail}`);
     // Shown once: the page read again has no link in it.
-    const later = await (await owner.get(`/desk/shoots/${shoot.id}/client`)).text();
+    const later = await (await owner.get(res.headers.get('location')!)).text();
     expect(later).not.toContain(url!);
+    expect(later).toContain('shown only once');
     expect(later).toMatch(/Sent .* to/);
     expect((await new Agent().get(`/g/${url!.split('/g/')[1]}`)).status).toBe(303);
   });
@@ -498,8 +500,8 @@ describe('reopening picks', () => {
     expect(page).toContain('Reopen picks');
     expect(page).toContain('keep');
     const res = await owner.postForm(`/desk/shoots/${shoot.id}/client`, { intent: 'reopen' });
-    expect(res.status).toBe(200);
-    expect(await res.text()).toContain('Picks are open again');
+    expect(res.status).toBe(303);
+    expect(await (await owner.get(res.headers.get('location')!)).text()).toContain('Picks are open again');
     expect((await db()('shoots').where({ id: shoot.id }).first('stage')).stage).toBe('proofing');
   });
 });
