@@ -5,7 +5,7 @@ const chromiumArgs = ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-f
 
 export default defineConfig({
   testDir: 'tests/e2e',
-  outputDir: 'tests/.artifacts/playwright',
+  outputDir: `${process.env.FILLCARD_ARTIFACTS ?? 'tests/.artifacts'}/playwright`,
   timeout: 120_000,
   expect: { timeout: 15_000 },
   workers: 1,

@@ -228,6 +228,9 @@ export function startApp(children: Children, env: NodeJS.ProcessEnv, logFile?: s
   return children.spawn('app', process.execPath, [path.join(env.FILLCARD_OUT_DIR ?? outDir(), 'server/entry.mjs')], { env, logFile });
 }
 
+/** Fewer malloc arenas keep libvips' many threads from fragmenting the worker's memory. */
+export const WORKER_ENV = { MALLOC_ARENA_MAX: '2' };
+
 export function startWorker(children: Children, env: NodeJS.ProcessEnv, logFile?: string) {
-  return children.spawn('worker', tsx, [path.join(root, 'src/worker.ts')], { env, logFile });
+  return children.spawn('worker', tsx, [path.join(root, 'src/worker.ts')], { env: { ...env, ...WORKER_ENV }, logFile });
 }

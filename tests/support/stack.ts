@@ -3,7 +3,7 @@
  * mid-work and coming back. Restarted processes are detached and log to the artifacts folder.
  */
 import { spawn, spawnSync } from 'node:child_process';
-import { openSync } from 'node:fs';
+import { openSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { setTimeout as sleep } from 'node:timers/promises';
 import { root, waitForPort, testPorts, testWorkDir } from '../../scripts/lib/services';
@@ -12,9 +12,18 @@ import { ARTIFACTS } from './env';
 const work = process.env.FILLCARD_TEST_WORK ?? testWorkDir;
 const isRoot = process.getuid?.() === 0;
 
+/** Processes of THIS test stack matching the pattern: its env carries this stack's database URL. */
 function pids(pattern: string): number[] {
   const r = spawnSync('pgrep', ['-f', pattern], { encoding: 'utf8' });
-  return r.stdout.split('\n').filter(Boolean).map(Number).filter((p) => p !== process.pid);
+  const mine = `DATABASE_URL=${process.env.DATABASE_URL}`;
+  return r.stdout.split('\n').filter(Boolean).map(Number).filter((p) => {
+    if (p === process.pid) return false;
+    try {
+      return readFileSync(`/proc/${p}/environ`, 'utf8').split('\0').includes(mine);
+    } catch {
+      return false;
+    }
+  });
 }
 
 export async function stopProcesses(pattern: string, signal: NodeJS.Signals = 'SIGTERM') {
@@ -27,7 +36,7 @@ export async function stopProcesses(pattern: string, signal: NodeJS.Signals = 'S
 
 function detached(cmd: string, args: string[], logName: string) {
   const out = openSync(path.join(ARTIFACTS, logName), 'a');
-  const child = spawn(cmd, args, { cwd: root, env: process.env, detached: true, stdio: ['ignore', out, out] });
+  const child = spawn(cmd, args, { cwd: root, env: { ...process.env, MALLOC_ARENA_MAX: '2' }, detached: true, stdio: ['ignore', out, out] });
   child.unref();
 }
 

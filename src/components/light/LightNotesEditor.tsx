@@ -87,7 +87,7 @@ function parseShutter(text: string): number | undefined {
 }
 
 function shutterText(s: number | undefined): string {
-  return s === undefined ? '' : formatShutter(s).replace(/ s$/, '');
+  return s === undefined || !(s > 0) ? '' : formatShutter(s).replace(/ s$/, '');
 }
 
 export default function LightNotesEditor({ shootId, initial, cameraFromExif, canEdit }: Props) {
@@ -494,6 +494,8 @@ export default function LightNotesEditor({ shootId, initial, cameraFromExif, can
       {/* Form */}
       <form
         className="flex min-w-0 flex-col gap-4"
+        // Plan positions come from dragging and are not on the inputs' 0.1 m steps; the schema checks bounds on save.
+        noValidate
         onSubmit={(e) => {
           e.preventDefault();
           void onSave();

@@ -119,12 +119,14 @@ export async function signUp(input: { studioName: string; name: string; email: s
   });
 }
 
-const SIGN_IN_LIMIT = { perAccount: 8, perAddress: 30, windowS: 15 * 60 };
+// Per account the limit is strict; per address it is loose, since a studio's whole office or a
+// mobile carrier can share one address. Both are settings (SIGN_IN_LIMIT_PER_ADDRESS).
+const SIGN_IN_LIMIT = { perAccount: 8, windowS: 15 * 60 };
 
 /** Checks e-mail and password, rate-limited per account and per address. Same message for every miss. */
 export async function signIn(input: { email: string; password: string; address: string }) {
   const email = normaliseEmail(input.email);
-  await limitRate(`signin:addr:${input.address}`, SIGN_IN_LIMIT.perAddress, SIGN_IN_LIMIT.windowS);
+  await limitRate(`signin:addr:${input.address}`, config().SIGN_IN_LIMIT_PER_ADDRESS, SIGN_IN_LIMIT.windowS);
   await limitRate(`signin:acct:${email}`, SIGN_IN_LIMIT.perAccount, SIGN_IN_LIMIT.windowS);
   const user = await db()('users').where({ email }).first('id', 'password_hash');
   const ok = user?.password_hash ? await verifyPassword(user.password_hash, input.password) : false;

@@ -32,6 +32,8 @@ export const configSchema = z.object({
   STRIPE_WEBHOOK_SECRET: z.string().regex(/^whsec_/, 'must start with whsec_').default('whsec_fillcard_local_secret'),
   /** Set only for the local payment stand-in; unset means the real Stripe API. */
   STRIPE_API_BASE: url.optional(),
+  /** Sign-in attempts allowed per network address in 15 minutes. */
+  SIGN_IN_LIMIT_PER_ADDRESS: z.coerce.number().int().min(5).max(100_000).default(100),
   SESSION_COOKIE_SECURE: z.enum(['auto', 'true', 'false']).default('auto'),
 });
 

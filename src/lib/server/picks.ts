@@ -380,6 +380,10 @@ export async function reopenPicks(member: SessionMember, shootId: string): Promi
     if (await hasPaidOrder(shoot.id, trx)) {
       throw conflict('The client has paid for extra retouches on these picks. Refund that order first, so what was paid for stays clear.');
     }
+    // A payment page still open would let the client pay for picks that are being changed.
+    if (await trx('orders').where({ shoot_id: shoot.id, state: 'pending' }).first('id')) {
+      throw conflict('The client has a payment in progress for these picks. Try again once it finishes or expires (within a day).');
+    }
     await trx('shoots').where({ id: shoot.id }).update({ picks_submitted_at: null, stage: 'proofing', updated_at: trx.fn.now() });
     await audit({ studioId: member.studioId, actorKind: 'member', actorId: member.userId, action: 'picks.reopened', subjectType: 'shoot', subjectId: shoot.id, details: { fromStage: shoot.stage } }, trx);
   });
