@@ -7,6 +7,7 @@ import { test, expect, type Page } from '@playwright/test';
 import { randomUUID } from 'node:crypto';
 import { syntheticPortrait } from '../../scripts/lib/synthetic-portrait';
 import { makeStudio, PASSWORD } from '../support/factories';
+import sharp from 'sharp';
 import { db } from '../../src/lib/server/db';
 
 // Invented maker and lens names only; the values are what ExifTool writes and reads back.
@@ -187,4 +188,27 @@ test('on a phone, an owner uploads a few frames, hides one and deletes another @
     { original_name: 'sitting-001.jpg', hidden: false },
     { original_name: 'sitting-002.jpg', hidden: true },
   ]);
+});
+
+test('a large TIFF goes up in parts and becomes a frame', async ({ page }) => {
+  test.setTimeout(120_000);
+  const studio = await makeStudio('Parts');
+  // Uncompressed 8-bit RGB: 2400 × 1600 × 3 bytes is about 11 MB, above the 8 MB line for parts.
+  const tiff = await sharp(await syntheticPortrait({ width: 2400, height: 1600, seed: 555 })).tiff({ compression: 'none' }).toBuffer();
+  expect(tiff.length).toBeGreaterThan(8 * 1024 * 1024);
+  const signed: { method: string; uploadId?: string; partNumber?: number }[] = [];
+  page.on('request', (r) => {
+    if (r.url().endsWith('/uploads/sign')) signed.push(JSON.parse(r.postData() ?? '{}'));
+  });
+  await signIn(page, studio.owner.email);
+  const shootId = await createShootThroughForm(page, 'Large files');
+  await uploadThroughUppy(page, [{ name: 'scan.tif', mimeType: 'image/tiff', buffer: tiff }]);
+  await expect(page.getByTestId('upload-summary')).toContainText('1 added to the shoot', { timeout: 60_000 });
+  await expect(page.getByTestId('processing-counts')).toContainText('1 ready', { timeout: 60_000 });
+  // Started as a multipart upload, two parts, then completed.
+  expect(signed.filter((s) => s.method === 'POST' && !s.uploadId)).toHaveLength(1);
+  expect(signed.filter((s) => s.method === 'PUT' && s.partNumber).map((s) => s.partNumber)).toEqual([1, 2]);
+  expect(signed.filter((s) => s.method === 'POST' && s.uploadId)).toHaveLength(1);
+  const frame = await db()('frames').where({ shoot_id: shootId }).first();
+  expect(frame).toMatchObject({ original_name: 'scan.tif', bytes: tiff.length, state: 'ready', width: 2400, height: 1600 });
 });

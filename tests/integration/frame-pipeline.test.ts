@@ -62,7 +62,7 @@ async function upload(agent: Agent, shootId: string, name: string, bytes: Buffer
   const s = await agent.postJson(`/api/shoots/${shootId}/uploads/sign`, { method: 'PUT', key: '', fileName: name, size: bytes.length });
   const signed = (await s.json()) as Signed;
   expect(s.status).toBe(200);
-  const put = await fetch(signed.url, { method: 'PUT', headers: signed.headers, body: bytes });
+  const put = await fetch(signed.url, { method: 'PUT', headers: signed.headers, body: new Uint8Array(bytes) });
   await put.arrayBuffer();
   expect(put.status).toBe(200);
   const r = await agent.postJson(`/api/shoots/${shootId}/frames`, { key: signed.key, name, size: bytes.length });
@@ -93,7 +93,7 @@ const allSettled = (ids: string[], timeoutMs: number) =>
   );
 
 /** The values ExifTool wrote, by tag; numbers become raw values (`TAG#=`). Invented maker names only. */
-const EXIF_CASES = [
+const EXIF_CASES: { name: string; orientation: number; ev: number; tags: Record<string, string | number> }[] = [
   {
     name: 'upright.jpg',
     orientation: 1,

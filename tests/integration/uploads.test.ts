@@ -29,7 +29,7 @@ async function sign(agent: Agent, shootId: string, body: Record<string, unknown>
 
 /** A presigned PUT, as the browser's uploader sends it. */
 async function put(signed: Signed, bytes: Buffer) {
-  const res = await fetch(signed.url, { method: 'PUT', headers: signed.headers, body: bytes });
+  const res = await fetch(signed.url, { method: 'PUT', headers: signed.headers, body: new Uint8Array(bytes) });
   await res.arrayBuffer();
   expect(res.status, 'the object store took the file').toBe(200);
 }
