@@ -42,8 +42,6 @@ export default function CompareFrames({ pair, picks, canPick, onKeep, onClose }:
                 <div className="relative min-h-0 flex-1">
                   <img
                     src={frame.proof.url}
-                    srcSet={`${frame.thumb.url} ${frame.thumb.width}w, ${frame.proof.url} ${frame.proof.width}w`}
-                    sizes="(min-width: 640px) 50vw, 100vw"
                     width={frame.proof.width}
                     height={frame.proof.height}
                     alt={`Proof of ${frame.name}`}

@@ -105,11 +105,10 @@ export default function ProofViewer({ frames, index, picks, canPick, saving, onI
             onPointerUp={onPointerUp}
             onPointerCancel={() => (swipe.current = null)}
           >
+            {/* Always the watermarked proof here, never the small thumbnail, whatever the screen. */}
             <img
               key={frame.id}
               src={frame.proof.url}
-              srcSet={`${frame.thumb.url} ${frame.thumb.width}w, ${frame.proof.url} ${frame.proof.width}w`}
-              sizes="(min-width: 1024px) calc(100vw - 22rem), 100vw"
               width={frame.proof.width}
               height={frame.proof.height}
               alt={`Proof of ${frame.name}, frame ${index + 1} of ${frames.length}`}

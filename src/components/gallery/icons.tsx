@@ -1,12 +1,12 @@
 /** Fillcard's own small glyphs for the gallery, drawn on a 20-unit grid. */
 interface IconProps { className?: string }
 
-/** A picked frame: a check inside a rounded square, like a ticked box on a contact sheet. */
+/** A picked frame: a check inside a rounded square, like a ticked box on a contact sheet. The check takes the studio colour. */
 export function PickMark({ picked, className }: IconProps & { picked: boolean }) {
   return (
     <svg viewBox="0 0 20 20" width="20" height="20" aria-hidden="true" className={className}>
       <rect x="2.5" y="2.5" width="15" height="15" rx="4" fill={picked ? 'currentColor' : 'none'} stroke="currentColor" strokeWidth="1.6" />
-      {picked ? <path d="M6 10.4l2.6 2.6L14.2 7.2" fill="none" stroke="#fff" strokeWidth="2" strokeLinecap="round" strokeLinejoin="round" /> : null}
+      {picked ? <path d="M6 10.4l2.6 2.6L14.2 7.2" fill="none" style={{ stroke: 'var(--brand, #a4492b)' }} strokeWidth="2.2" strokeLinecap="round" strokeLinejoin="round" /> : null}
     </svg>
   );
 }

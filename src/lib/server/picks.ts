@@ -37,16 +37,27 @@ const urlCache = new Map<string, { hour: number; url: string }>();
 /**
  * variantUrl signs with the time rounded down to the hour, so within one hour it returns the same
  * URL for a key; remembering it saves about half a millisecond of signing per image, which is most
- * of the time a 500-frame gallery listing would otherwise take.
+ * of the time a 500-frame gallery listing would otherwise take. Lookups stay synchronous: only the
+ * keys not yet signed this hour wait for signing.
  */
-async function cachedVariantUrl(key: string): Promise<string> {
+async function signedUrls(objectKeys: string[]): Promise<Map<string, string>> {
   const hour = Math.floor(Date.now() / HOUR);
-  const hit = urlCache.get(key);
-  if (hit && hit.hour === hour) return hit.url;
-  const url = await variantUrl(key);
-  if (urlCache.size >= URL_CACHE_MAX) urlCache.clear();
-  urlCache.set(key, { hour, url });
-  return url;
+  const out = new Map<string, string>();
+  const missing: string[] = [];
+  for (const key of objectKeys) {
+    const hit = urlCache.get(key);
+    if (hit && hit.hour === hour) out.set(key, hit.url);
+    else missing.push(key);
+  }
+  if (missing.length) {
+    if (urlCache.size + missing.length > URL_CACHE_MAX) urlCache.clear();
+    await Promise.all(missing.map(async (key) => {
+      const url = await variantUrl(key);
+      urlCache.set(key, { hour, url });
+      out.set(key, url);
+    }));
+  }
+  return out;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -68,12 +79,13 @@ export async function galleryFrames(shootId: string, studioId: string): Promise<
     .where({ 'f.shoot_id': shootId, 'f.studio_id': studioId })
     .orderBy([{ column: 'f.taken_at', order: 'asc', nulls: 'last' }, { column: 'f.original_name', order: 'asc' }, { column: 'f.id', order: 'asc' }])
     .select('f.id', 'f.original_name', 't.object_key as tk', 't.width as tw', 't.height as th', 'p.object_key as pk', 'p.width as pw', 'p.height as ph');
-  return Promise.all(rows.map(async (r) => ({
+  const urls = await signedUrls(rows.flatMap((r) => [r.tk, r.pk]));
+  return rows.map((r) => ({
     id: r.id,
     name: r.original_name,
-    thumb: { url: await cachedVariantUrl(r.tk), width: r.tw, height: r.th },
-    proof: { url: await cachedVariantUrl(r.pk), width: r.pw, height: r.ph },
-  })));
+    thumb: { url: urls.get(r.tk)!, width: r.tw, height: r.th },
+    proof: { url: urls.get(r.pk)!, width: r.pw, height: r.ph },
+  }));
 }
 
 async function visiblePicks(shootId: string, studioId: string, q: Db = db()): Promise<GalleryPick[]> {
@@ -267,14 +279,15 @@ export async function picksForStudio(shootId: string, studioId: string): Promise
     .where({ 'k.shoot_id': shootId, 'k.studio_id': studioId })
     .orderBy([{ column: 'f.taken_at', order: 'asc', nulls: 'last' }, { column: 'f.original_name', order: 'asc' }])
     .select('k.frame_id', 'k.note', 'k.updated_at', 'f.original_name', 'f.hidden', 'f.state', 't.object_key as tk', 't.width as tw', 't.height as th');
-  return Promise.all(rows.map(async (r) => ({
+  const urls = await signedUrls(rows.filter((r) => r.tk).map((r) => r.tk));
+  return rows.map((r) => ({
     frameId: r.frame_id,
     name: r.original_name,
     note: r.note,
     hidden: r.hidden || r.state !== 'ready',
-    thumb: r.tk ? { url: await cachedVariantUrl(r.tk), width: r.tw, height: r.th } : null,
+    thumb: r.tk ? { url: urls.get(r.tk)!, width: r.tw, height: r.th } : null,
     updatedAt: new Date(r.updated_at).toISOString(),
-  })));
+  }));
 }
 
 export async function readyFrameCount(shootId: string, studioId: string): Promise<number> {
