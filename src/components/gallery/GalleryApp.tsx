@@ -1,6 +1,6 @@
 import { useMemo, useState } from 'react';
-import { QueryClient, QueryClientProvider, useIsMutating } from '@tanstack/react-query';
-import { useGallery, usePickChange } from './gallery-api';
+import { QueryClient, QueryClientProvider, useIsMutating, useQueryClient } from '@tanstack/react-query';
+import { galleryKey, useGallery, usePickChange } from './gallery-api';
 import PickTally from './PickTally';
 import ProofViewer from './ProofViewer';
 import CompareFrames from './CompareFrames';
@@ -25,6 +25,7 @@ const when = (iso: string) => new Date(iso).toLocaleString('en-GB', { day: 'nume
 
 function Gallery({ initial }: Props) {
   const shootId = initial.shootId;
+  const queryClient = useQueryClient();
   const { data } = useGallery(shootId, initial);
   const { change, error, clearError } = usePickChange(shootId);
   const saving = useIsMutating({ mutationKey: ['pick'] }) > 0;
@@ -42,8 +43,10 @@ function Gallery({ initial }: Props) {
 
   const toggle = (frame: GalleryFrame, picked: boolean) => change({ frameId: frame.id, picked, name: frame.name });
   const saveNote = (frame: GalleryFrame, note: string) => {
-    // A note typed just before un-picking must not pick the frame again.
-    if (picks.has(frame.id)) change({ frameId: frame.id, picked: true, note, name: frame.name });
+    // A note typed just before un-picking must not pick the frame again; the cache, not this
+    // render's picks, knows whether it is still picked when a closing note field saves.
+    const current = queryClient.getQueryData<GalleryData>(galleryKey(shootId));
+    if (current?.picks.some((p) => p.frameId === frame.id)) change({ frameId: frame.id, picked: true, note, name: frame.name });
   };
   // The viewer keeps the list it opened with, so un-picking under "Only my picks" does not pull the frame away.
   const open = (frameId: string) => setViewer({ ids: shown.map((f) => f.id), index: Math.max(0, shown.findIndex((f) => f.id === frameId)) });
@@ -60,7 +63,8 @@ function Gallery({ initial }: Props) {
           {data.awaitingPayment ? (
             <p>Your picks are set aside. To send them to {data.studioName}, pay for the extra retouches on the <a href={`/gallery/${shootId}/review`}>review page</a>.</p>
           ) : (
-            <p>Your picks were sent to {data.studioName} on {when(data.submittedAt)}. If you want to change them, ask the studio to reopen them.</p>
+            // The time reads in the browser's own zone, which the server cannot know.
+            <p suppressHydrationWarning>Your picks were sent to {data.studioName} on {when(data.submittedAt)}. If you want to change them, ask the studio to reopen them.</p>
           )}
         </div>
       ) : !canPick ? (

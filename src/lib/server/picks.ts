@@ -346,7 +346,9 @@ export async function sendViewingLink(member: SessionMember, shootId: string, in
     const paragraphs = [`Hello ${client.name},`];
     if (input.message) paragraphs.push(input.message);
     paragraphs.push(
-      `The proofs from “${shoot.title}” are ready: ${ready} ${ready === 1 ? 'frame' : 'frames'} to look through. Pick the ones you would like retouched, and add a note to any of them.`,
+      shoot.picks_submitted_at
+        ? `Here is a fresh link to the proofs from “${shoot.title}”. Your picks are already with me; you can look through all ${ready} ${ready === 1 ? 'frame' : 'frames'} again.`
+        : `The proofs from “${shoot.title}” are ready: ${ready} ${ready === 1 ? 'frame' : 'frames'} to look through. Pick the ones you would like retouched, and add a note to any of them.`,
       `Your package includes ${shoot.allowance} retouched ${shoot.allowance === 1 ? 'frame' : 'frames'}` +
         (shoot.extra_price_minor > 0 ? `; each extra one is ${extraPriceText(shoot)}.` : '.'),
       `The gallery is open until ${dateText(shoot.proof_expires_at)}.` + (shoot.passcode_hash ? ' Open it with the passcode I gave you.' : ''),
