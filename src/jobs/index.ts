@@ -1,6 +1,7 @@
 import type PgBoss from 'pg-boss';
 import { QUEUES } from '../lib/server/jobs';
 import { frameProcessHandler, sweepFrames, frameCropsHandler } from './frame-process';
+import { finalProcessHandler, sweepFinals } from './final-process';
 
 export interface WorkerJob {
   queue: (typeof QUEUES)[keyof typeof QUEUES];
@@ -15,4 +16,5 @@ export interface WorkerJob {
 export const workerJobs: WorkerJob[] = [
   { queue: QUEUES.frameProcess, handler: frameProcessHandler, sweep: sweepFrames },
   { queue: QUEUES.frameCrops, handler: frameCropsHandler, concurrency: 1 },
+  { queue: QUEUES.finalProcess, handler: finalProcessHandler, sweep: sweepFinals, concurrency: 1 },
 ];

@@ -17,13 +17,44 @@ export interface UploadLimits {
   extensions: string[];
 }
 
+/**
+ * What the uploader says and where it sends files. Frames are the default; the Finals tab uses the
+ * same uploader with its own endpoints and words.
+ */
+export interface UploaderSetup {
+  uppyId: string;
+  /** Signs each S3 request (POST, JSON). */
+  signUrl: string;
+  /** Registers each finished file (POST { key, name, size }). */
+  registerUrl: string;
+  heading: string;
+  intro: string;
+  /** Heading over refused files, by count. */
+  problemsHeading: (count: number) => string;
+  /** The drop area's own strings, merged over the frame wording. */
+  strings?: Record<string, unknown>;
+  note?: string;
+  restrictionStrings?: Record<string, unknown>;
+}
+
+export const frameUploaderSetup = (shootId: string): UploaderSetup => ({
+  uppyId: `shoot-${shootId}`,
+  signUrl: `/api/shoots/${shootId}/uploads/sign`,
+  registerUrl: `/api/shoots/${shootId}/frames`,
+  heading: 'Add frames',
+  intro: "Files go straight to the studio's private storage; nothing is shown to the client until you send the viewing link.",
+  problemsHeading: (n) => (n === 1 ? '1 file did not become a frame' : `${n} files did not become frames`),
+});
+
 interface Props {
   shootId: string;
   limits: UploadLimits;
   /** Told whenever sending starts or stops, so the page can poll faster meanwhile. */
   onActivity: (busy: boolean) => void;
-  /** Told after each file becomes a frame. */
-  onRegistered: () => void;
+  /** Told after each file is registered, with the server's answer. */
+  onRegistered: (result: unknown, fileName: string) => void;
+  /** Endpoints and words; frames when not given. */
+  setup?: UploaderSetup;
 }
 
 type FileProblem = { fileId: string; name: string; message: string; retryable: boolean };
@@ -69,14 +100,14 @@ class Refusal extends Error {
   }
 }
 
-function createUploader(shootId: string, limits: UploadLimits) {
+function createUploader(limits: UploadLimits, setup: UploaderSetup) {
   /** The key Uppy asks to start with stands for a file; the server then makes the real key. */
   const fileForToken = new Map<string, string>();
   const keyForFile = new Map<string, string>();
   let tokens = 0;
 
   const uppy = new Uppy<Meta, Body>({
-    id: `shoot-${shootId}`,
+    id: setup.uppyId,
     autoProceed: true,
     restrictions: {
       allowedFileTypes: limits.extensions.map((e) => `.${e}`),
@@ -94,6 +125,7 @@ function createUploader(shootId: string, limits: UploadLimits) {
         failedToUpload: '%{file} did not upload',
         noInternetConnection: 'No connection: the upload waits and goes on when you are back online',
         connectedToInternet: 'Connected again',
+        ...setup.restrictionStrings,
       },
     } as never,
   });
@@ -117,7 +149,7 @@ function createUploader(shootId: string, limits: UploadLimits) {
         if (!file) throw new Error('This file is no longer in the list.');
         body = { method: req.method, fileName: file.name, size: file.size ?? 0, contentType: file.type || undefined };
       }
-      const { data } = await postWithRetry<SignedRequest>(`/api/shoots/${shootId}/uploads/sign`, body);
+      const { data } = await postWithRetry<SignedRequest>(setup.signUrl, body);
       if (fileId) {
         fileForToken.delete(req.key);
         keyForFile.set(fileId, data.key);
@@ -145,7 +177,8 @@ const PROGRESS_SELECTOR = (s: { totalProgress: number; files: Record<string, Fil
   };
 };
 
-export default function ShootUploader({ shootId, limits, onActivity, onRegistered }: Props) {
+export default function ShootUploader({ shootId, limits, onActivity, onRegistered, setup: given }: Props) {
+  const setup = useMemo(() => given ?? frameUploaderSetup(shootId), [given, shootId]);
   const [made, setMade] = useState<ReturnType<typeof createUploader> | null>(null);
   const [problems, setProblems] = useState<FileProblem[]>([]);
   const registered = useRef(onRegistered);
@@ -154,7 +187,7 @@ export default function ShootUploader({ shootId, limits, onActivity, onRegistere
   activity.current = onActivity;
 
   useEffect(() => {
-    const made = createUploader(shootId, limits);
+    const made = createUploader(limits, setup);
     const { uppy, keyForFile } = made;
     const registrations = new Map<string, Promise<void>>();
     const forget = (fileId: string) => setProblems((list) => list.filter((p) => p.fileId !== fileId));
@@ -164,10 +197,10 @@ export default function ShootUploader({ shootId, limits, onActivity, onRegistere
     async function register(file: File, key: string | undefined) {
       try {
         if (!key) throw new Refusal(0, 'The upload finished without a storage key. Please try this file again.');
-        await postWithRetry(`/api/shoots/${shootId}/frames`, { key, name: file.name, size: file.size ?? 0 });
+        const { data } = await postWithRetry(setup.registerUrl, { key, name: file.name, size: file.size ?? 0 });
         uppy.emit('postprocess-complete', uppy.getFile(file.id));
         forget(file.id);
-        registered.current();
+        registered.current(data, file.name ?? '');
       } catch (err) {
         const message = (err as Error).message;
         const current = uppy.getFile(file.id);
@@ -215,20 +248,18 @@ export default function ShootUploader({ shootId, limits, onActivity, onRegistere
     <section aria-labelledby="uploader-heading" className="card p-4 sm:p-5">
       <div className="flex flex-wrap items-baseline justify-between gap-2">
         <h2 id="uploader-heading" className="text-title">
-          Add frames
+          {setup.heading}
         </h2>
-        <p className="text-caption text-ink-faint">
-          Files go straight to the studio's private storage; nothing is shown to the client until you send the viewing link.
-        </p>
+        <p className="text-caption text-ink-faint">{setup.intro}</p>
       </div>
       <div className="fc-uploader mt-3" style={{ minHeight: 300 }}>
-        {made ? <UppyDashboard uppy={made.uppy} limits={limits} /> : <div className="h-[300px] rounded-card border border-dashed border-paper-edge bg-paper" aria-hidden="true" />}
+        {made ? <UppyDashboard uppy={made.uppy} limits={limits} setup={setup} /> : <div className="h-[300px] rounded-card border border-dashed border-paper-edge bg-paper" aria-hidden="true" />}
       </div>
       {made ? <UploadSummary uppy={made.uppy} /> : null}
       {problems.length ? (
         <div className="mt-3 rounded-card border border-ember/30 bg-ember-light/60 p-3" role="alert" aria-live="polite">
           <h3 className="font-sans text-body font-semibold text-ember">
-            {problems.length === 1 ? '1 file did not become a frame' : `${problems.length} files did not become frames`}
+            {setup.problemsHeading(problems.length)}
           </h3>
           <ul className="mt-2 space-y-2" data-testid="upload-problems">
             {problems.map((p) => (
@@ -262,7 +293,7 @@ export default function ShootUploader({ shootId, limits, onActivity, onRegistere
   );
 }
 
-function UppyDashboard({ uppy, limits }: { uppy: Uppy<Meta, Body>; limits: UploadLimits }) {
+function UppyDashboard({ uppy, limits, setup }: { uppy: Uppy<Meta, Body>; limits: UploadLimits; setup: UploaderSetup }) {
   const locale = useMemo(
     () => ({
       strings: {
@@ -294,9 +325,10 @@ function UppyDashboard({ uppy, limits }: { uppy: Uppy<Meta, Body>; limits: Uploa
         error: 'Problem',
         showErrorDetails: 'Why?',
         dropHint: 'Drop the frames here',
+        ...setup.strings,
       },
     }),
-    [],
+    [setup],
   );
   return (
     <Dashboard
@@ -309,7 +341,7 @@ function UppyDashboard({ uppy, limits }: { uppy: Uppy<Meta, Body>; limits: Uploa
       disableThumbnailGenerator
       hideProgressDetails={false}
       hidePauseResumeButton={false}
-      note={`JPEG, PNG, TIFF or WebP, up to ${formatBytes(limits.maxBytes)} each. Large files go up in parts and resume after a dropped connection.`}
+      note={setup.note ?? `JPEG, PNG, TIFF or WebP, up to ${formatBytes(limits.maxBytes)} each. Large files go up in parts and resume after a dropped connection.`}
       locale={locale as never}
     />
   );

@@ -1,0 +1,225 @@
+/**
+ * Getting finals out: download file names, the download log, single files by short-lived presigned
+ * URL, and ZIPs streamed from storage through the app one object after another (never a temp file,
+ * never a whole archive in memory).
+ */
+import { Readable } from 'node:stream';
+import archiver from 'archiver';
+import { db } from './db';
+import { getObjectStream, presignGet, contentDisposition } from './storage';
+import type { DownloadLogEntry, FinalKind } from '../../components/finals/types';
+
+/** Single-file links live five minutes: long enough to start a download, short enough not to be shared. */
+export const DOWNLOAD_URL_SECONDS = 300;
+
+// ---------------------------------------------------------------------------------------------
+// File names
+
+/**
+ * One part of a download name: letters and digits of any script kept, everything else (quotes,
+ * slashes, line breaks, dots, spaces) becomes a hyphen. The header gets an ASCII fallback and the
+ * UTF-8 form from contentDisposition(); inside a ZIP the name is stored as UTF-8.
+ */
+export function slugPart(text: string, max = 40): string {
+  const dashed = String(text ?? '')
+    .normalize('NFC')
+    .replace(/[^\p{L}\p{N}]+/gu, '-')
+    .replace(/^-+|-+$/g, '');
+  const cut = Array.from(dashed).slice(0, max).join('').replace(/-+$/, '');
+  return cut || 'photos';
+}
+
+/** "Mira-Calloway_Spring-headshots": who and which shoot, for every file of one delivery. */
+export function downloadBase(clientName: string, shootTitle: string): string {
+  return `${slugPart(clientName)}_${slugPart(shootTitle)}`;
+}
+
+const KIND_SUFFIX: Record<FinalKind, string> = {
+  full: '',
+  crop_4x5: '_4x5',
+  crop_1x1: '_1x1',
+  crop_9x16: '_9x16',
+  print_8x10: '_8x10-print',
+};
+
+/** "Mira-Calloway_Spring-headshots_07.jpg", "…_07_4x5.jpg": numbers padded so files sort in order. */
+export function finalFileName(base: string, number: number, digits: number, kind: FinalKind): string {
+  return `${base}_${String(number).padStart(Math.max(2, digits), '0')}${KIND_SUFFIX[kind]}.jpg`;
+}
+
+export const zipFileName = (base: string, set: 'finals' | 'crops') => `${base}_${set === 'finals' ? 'finals' : 'crops'}.zip`;
+
+// ---------------------------------------------------------------------------------------------
+// The log
+
+export type DownloadWhat = 'final' | 'crop' | 'finals_zip' | 'crops_zip' | 'original';
+export type DownloadActor = { kind: 'client'; id: string } | { kind: 'member'; id: string };
+
+export interface DownloadRecord {
+  studioId: string;
+  shootId: string;
+  what: DownloadWhat;
+  finalId?: string | null;
+  frameId?: string | null;
+  kind?: FinalKind | null;
+  actor: DownloadActor;
+  ip: string | null;
+  userAgent: string | null;
+}
+
+/** Writes one row of the download log: who, what, when, from where. */
+export async function recordDownload(r: DownloadRecord): Promise<void> {
+  await db()('downloads').insert({
+    studio_id: r.studioId,
+    shoot_id: r.shootId,
+    final_id: r.finalId ?? null,
+    frame_id: r.frameId ?? null,
+    kind: r.kind ?? null,
+    what: r.what,
+    actor_kind: r.actor.kind,
+    actor_id: r.actor.id,
+    ip: r.ip ? r.ip.slice(0, 64) : null,
+    user_agent: r.userAgent ? r.userAgent.slice(0, 400) : null,
+  });
+}
+
+/** Who is asking, for the log: the client of the session or the signed-in member. */
+export function requester(ctx: { request: Request; clientAddress?: string }, actor: DownloadActor) {
+  let ip: string | null = null;
+  try {
+    ip = ctx.clientAddress ?? null;
+  } catch {
+    ip = null;
+  }
+  return { actor, ip, userAgent: ctx.request.headers.get('user-agent') };
+}
+
+const WHAT_LABEL: Record<DownloadWhat, string> = {
+  final: 'Final',
+  crop: 'Crop',
+  finals_zip: 'All finals (ZIP)',
+  crops_zip: 'All crops (ZIP)',
+  original: 'Original',
+};
+const KIND_WORD: Record<string, string> = { crop_4x5: '4:5', crop_1x1: '1:1', crop_9x16: '9:16', print_8x10: '8×10 print' };
+
+/** The shoot's download log, newest first, in words for the owner. */
+export async function downloadLog(shootId: string, studioId: string, limit = 200): Promise<DownloadLogEntry[]> {
+  const rows = await db()('downloads as d')
+    .leftJoin('clients as c', (j) => j.on('c.id', 'd.actor_id').andOnVal('d.actor_kind', 'client'))
+    .leftJoin('users as u', (j) => j.on('u.id', 'd.actor_id').andOnVal('d.actor_kind', 'member'))
+    .leftJoin('finals as fi', 'fi.id', 'd.final_id')
+    .leftJoin('frames as fr', (j) => j.on('fr.id', db().raw('coalesce(d.frame_id, fi.frame_id, fi.pending_frame_id)')))
+    .where({ 'd.shoot_id': shootId, 'd.studio_id': studioId })
+    .orderBy('d.created_at', 'desc')
+    .limit(limit)
+    .select('d.id', 'd.created_at', 'd.what', 'd.kind', 'd.actor_kind', 'd.ip', 'd.user_agent', 'c.name as client_name', 'u.name as user_name', 'fr.original_name');
+  return rows.map((r) => {
+    const of = r.original_name ? ` of ${r.original_name}` : '';
+    const label = WHAT_LABEL[r.what as DownloadWhat];
+    const what = r.what === 'crop' ? `${KIND_WORD[r.kind] ?? 'Crop'} crop${of}` : r.what === 'final' || r.what === 'original' ? `${label}${of}` : label;
+    return {
+      id: r.id,
+      at: new Date(r.created_at).toISOString(),
+      who: (r.actor_kind === 'client' ? r.client_name : r.user_name) ?? (r.actor_kind === 'client' ? 'The client' : 'A former member'),
+      whoKind: r.actor_kind,
+      what,
+      ip: r.ip,
+      userAgent: r.user_agent,
+    };
+  });
+}
+
+// ---------------------------------------------------------------------------------------------
+// Delivery
+
+/** A redirect to the object itself, signed for five minutes, saved under the given name. */
+export async function redirectToDownload(key: string, fileName: string, contentType = 'image/jpeg'): Promise<Response> {
+  const url = await presignGet(key, { expiresIn: DOWNLOAD_URL_SECONDS, downloadName: fileName, contentType });
+  return new Response(null, { status: 302, headers: { Location: url, 'Cache-Control': 'no-store' } });
+}
+
+export interface ZipEntry {
+  name: string;
+  key: string;
+  date?: Date;
+}
+
+/** Resolves when the archive has written the entry just appended; rejects if it fails or is torn down. */
+function entryWritten(archive: archiver.Archiver): Promise<void> {
+  return new Promise((resolve, reject) => {
+    const done = (err?: Error) => {
+      archive.off('entry', onEntry);
+      archive.off('error', onError);
+      archive.off('close', onClose);
+      if (err) reject(err);
+      else resolve();
+    };
+    const onEntry = () => done();
+    const onError = (err: Error) => done(err);
+    const onClose = () => done(new Error('the archive was closed before the entry was written'));
+    archive.on('entry', onEntry);
+    archive.on('error', onError);
+    archive.on('close', onClose);
+  });
+}
+
+/**
+ * A ZIP of the given objects as a web stream. JPEGs do not compress, so entries are stored, and
+ * each object is opened only when the one before it is written: one storage read at a time,
+ * memory bounded by the stream buffers whatever the archive's size. Aborting (the browser went
+ * away) stops the reads.
+ */
+export function zipStream(entries: ZipEntry[], signal?: AbortSignal): ReadableStream<Uint8Array> {
+  const archive = archiver('zip', { store: true, zlib: { level: 0 } });
+  let current: Readable | null = null;
+  let stopped = false;
+  const stop = () => {
+    stopped = true;
+    current?.destroy();
+  };
+  archive.on('close', stop);
+  archive.on('warning', (err) => console.error('[fillcard] zip warning:', err));
+  signal?.addEventListener('abort', () => {
+    stop();
+    archive.destroy();
+  });
+
+  void (async () => {
+    for (const e of entries) {
+      if (stopped) return;
+      const { stream } = await getObjectStream(e.key);
+      if (stopped) {
+        stream.destroy();
+        return;
+      }
+      current = stream;
+      // A read that fails half-way must fail the download, not end it as a short, valid-looking ZIP.
+      stream.once('error', (err) => archive.destroy(err));
+      const written = entryWritten(archive);
+      archive.append(stream, { name: e.name, date: e.date ?? new Date(), store: true });
+      await written;
+      current = null;
+    }
+    if (!stopped) await archive.finalize();
+  })().catch((err) => {
+    if (!stopped) console.error('[fillcard] zip stream failed:', err);
+    stop();
+    archive.destroy(err instanceof Error ? err : new Error(String(err)));
+  });
+
+  return Readable.toWeb(archive) as unknown as ReadableStream<Uint8Array>;
+}
+
+/** The response for a streamed ZIP download. */
+export function zipResponse(entries: ZipEntry[], fileName: string, signal?: AbortSignal): Response {
+  return new Response(zipStream(entries, signal), {
+    status: 200,
+    headers: {
+      'Content-Type': 'application/zip',
+      'Content-Disposition': contentDisposition(fileName),
+      'Cache-Control': 'no-store',
+      'X-Content-Type-Options': 'nosniff',
+    },
+  });
+}
