@@ -38,6 +38,7 @@ describe('access matrix', () => {
     const other = await makeShoot(b.studioId);
     const expiring = await makeShoot(a.studioId);
     const locked = await makeShoot(a.studioId, { stage: 'picks_in' });
+    const archived = await makeShoot(a.studioId, { stage: 'archived' });
     // Frames for the frame routes, inserted directly: failed, with keys under their shoot's prefix.
     const frame = async (studioId: string, shootId: string) => {
       const id = randomUUID();
@@ -47,6 +48,7 @@ describe('access matrix', () => {
     world = {
       shootA: shootA.shoot.id, shootB: shootB.shoot.id, shootOther: other.shoot.id, tokenA: shootA.token, clientA: shootA.client.id,
       studioA: a.studioId, frameA: await frame(a.studioId, shootA.shoot.id), frameLocked: await frame(a.studioId, locked.shoot.id), frameOther: await frame(b.studioId, other.shoot.id),
+      shootArchived: archived.shoot.id,
     };
 
     agents.anonymous = new Agent();

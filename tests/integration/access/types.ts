@@ -12,6 +12,7 @@ export interface World {
   frameA: string; // a failed frame of shoot A whose original is no longer in storage
   frameLocked: string; // a frame of studio A's shoot whose picks are in (frames can no longer be removed)
   frameOther: string; // a failed frame of shootOther (studio B)
+  shootArchived: string; // an archived shoot of studio A (finals, hand-off and archive refuse it harmlessly)
 }
 
 export interface Row {
