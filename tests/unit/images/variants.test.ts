@@ -195,6 +195,16 @@ describe('watermark on the proof', () => {
     expect(sumDiff / n).toBeGreaterThan(12);
   });
 
+  it('the thumbnail clients see carries the watermark too', async () => {
+    const built = await buildFrameVariants({ original, watermark });
+    const thumb = await rgb(variant(built, 'thumb').data);
+    const plain = await convertToRgb(original, ['-resize', `${thumb.width}x${thumb.height}!`]);
+    const clean = await buildFrameVariants({ original, watermark: { ...watermark, opacity: 0 } });
+    const cleanThumb = await rgb(variant(clean, 'thumb').data);
+    // The watermarked thumbnail is further from ImageMagick's plain resize than the unmarked one is.
+    expect(meanAbsDiff(thumb.data, plain.data)).toBeGreaterThan(meanAbsDiff(cleanThumb.data, plain.data) + 1);
+  });
+
   it('with opacity 0 the proof matches the unwatermarked resize', async () => {
     const built = await buildFrameVariants({ original, watermark: { text: 'Harbour Light Studio', opacity: 0 } });
     const shares = changedShares(await rgb(variant(built, 'proof').data));

@@ -81,13 +81,18 @@ export function proofBase(img: RawImage): Promise<RawImage> {
  * watermark is drawn into the base's own pixels (saving a copy); nothing may read them afterwards.
  */
 export async function proofFromBase(base: RawImage, watermark: WatermarkSpec, consumeBase = false): Promise<VariantOut> {
+  return encode('proof', fromRaw(await watermarkedBase(base, watermark, consumeBase)), PROOF_QUALITY);
+}
+
+/** The base with the watermark drawn in; with `consumeBase` into the base's own pixels. */
+export async function watermarkedBase(base: RawImage, watermark: WatermarkSpec, consumeBase = false): Promise<RawImage> {
   const overlay = await watermarkOverlay(watermark, base.width, base.height);
   let pixels = base.data;
   if (overlay) {
     if (!consumeBase) pixels = Buffer.from(base.data);
     blendOverlay(pixels, base.width, base.height, overlay);
   }
-  return encode('proof', fromRaw({ ...base, data: pixels }), PROOF_QUALITY);
+  return { ...base, data: pixels };
 }
 
 /**
@@ -146,14 +151,14 @@ export async function buildFrameVariants(input: FrameVariantsInput): Promise<Fra
   const small = await smallCopy(base);
   const focus = input.focus ? normaliseFocus(input.focus) : await findFocus(small);
   const thumbSize = fitInside(base.width, base.height, THUMB_EDGE);
-  const [cull, thumb, crops] = await Promise.all([
-    measureCull(base, small),
-    encode('thumb', fromRaw(base).resize(thumbSize.width, thumbSize.height, { fit: 'fill' }), THUMB_QUALITY),
-    cropsFromIntermediate(img, focus),
+  const [cull, crops] = await Promise.all([measureCull(base, small), cropsFromIntermediate(img, focus)]);
+  // Clients see the thumbnail too, so it is cut from the watermarked proof. Nothing reads the clean
+  // base any more, so the watermark goes straight into it, unless a small frame made it the intermediate.
+  const marked = await watermarkedBase(base, input.watermark, base !== img);
+  const [thumb, proof] = await Promise.all([
+    encode('thumb', fromRaw(marked).resize(thumbSize.width, thumbSize.height, { fit: 'fill' }), THUMB_QUALITY),
+    encode('proof', fromRaw(marked), PROOF_QUALITY),
   ]);
-  // Nothing reads the base any more, so the watermark can go straight into it, unless a small
-  // frame made the base the intermediate itself.
-  const proof = await proofFromBase(base, input.watermark, base !== img);
   const exposure = exif.fNumber !== null && exif.exposureTimeS !== null ? ev100(exif.fNumber, exif.exposureTimeS) : null;
   return {
     width: facts.width,
