@@ -45,7 +45,15 @@ describe('access matrix', () => {
       await db()('frames').insert({ id, studio_id: studioId, shoot_id: shootId, object_key: `studios/${studioId}/shoots/${shootId}/originals/${id}.jpg`, original_name: 'matrix.jpg', bytes: 1000, state: 'failed', error: 'Test frame.' });
       return id;
     };
+    // A ready frame of shoot B (same studio) with a thumbnail and a crop, for the media route; shoot A
+    // stays without ready frames so the rows above keep their meaning.
+    const readyFrame = randomUUID();
+    await db()('frames').insert({ id: readyFrame, studio_id: a.studioId, shoot_id: shootB.shoot.id, object_key: `studios/${a.studioId}/shoots/${shootB.shoot.id}/originals/${readyFrame}.jpg`, original_name: 'ready.jpg', bytes: 1000, state: 'ready' });
+    const variant = async (kind: string) => (await db()('frame_variants').insert({ studio_id: a.studioId, frame_id: readyFrame, kind, object_key: `studios/${a.studioId}/shoots/${shootB.shoot.id}/variants/${randomUUID().replace(/-/g, '')}.jpg`, width: 10, height: 10, bytes: 10 }).returning('id'))[0].id as string;
+    const variantThumbA = await variant('thumb');
+    const variantCropA = await variant('crop_4x5');
     world = {
+      variantThumbA, variantCropA,
       shootA: shootA.shoot.id, shootB: shootB.shoot.id, shootOther: other.shoot.id, tokenA: shootA.token, clientA: shootA.client.id,
       studioA: a.studioId, frameA: await frame(a.studioId, shootA.shoot.id), frameLocked: await frame(a.studioId, locked.shoot.id), frameOther: await frame(b.studioId, other.shoot.id),
       shootArchived: archived.shoot.id,

@@ -218,11 +218,18 @@ describe('the client gallery and picks', () => {
     const allowed = new Set(await db()('frame_variants').whereIn('frame_id', frames).whereIn('kind', ['thumb', 'proof']).pluck('object_key'));
     for (const f of g.frames) {
       for (const url of [f.thumb.url, f.proof.url]) {
-        const key = decodeURIComponent(new URL(url).pathname.split('/').slice(2).join('/'));
+        // The app's media route checks the client, then redirects to a short-lived presigned URL.
+        expect(url).toMatch(/^\/media\/[0-9a-f-]{36}\?v=[0-9a-f]{12}$/);
+        const hop = await client.get(url);
+        expect(hop.status).toBe(302);
+        const target = hop.headers.get('location')!;
+        const key = decodeURIComponent(new URL(target).pathname.split('/').slice(2).join('/'));
         expect(allowed.has(key)).toBe(true);
-        const img = await fetch(url);
+        const img = await fetch(target);
         expect(img.status).toBe(200);
         expect(img.headers.get('content-type')).toBe('image/jpeg');
+        // Nobody else follows the same address to the image.
+        expect((await new Agent().get(url)).status).toBe(404);
       }
     }
   });

@@ -14,3 +14,13 @@ export async function variantUrl(key: string): Promise<string> {
 
 /** Cache header for content-addressed variants: the same key always holds the same bytes. */
 export const IMMUTABLE = 'public, max-age=31536000, immutable';
+
+/**
+ * The app's own address for a variant: small in listings (a gallery of 500 frames stays a small
+ * answer on a phone), checked per request, and changing whenever the variant's bytes change (its
+ * key is their hash), so a browser never shows a stale crop.
+ */
+export function mediaPath(variantId: string, objectKey: string): string {
+  const hash = objectKey.slice(objectKey.lastIndexOf('/') + 1).split('.')[0]!.slice(0, 12);
+  return `/media/${variantId}?v=${hash}`;
+}

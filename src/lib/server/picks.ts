@@ -13,7 +13,7 @@ import { conflict, notFound, HttpError } from './http';
 import { isUuid, shootForMember } from './permissions';
 import { limitRate } from './rate-limit';
 import { queueMail, dispatchMail, renderMail } from './mail';
-import { variantUrl } from './media';
+import { mediaPath } from './media';
 import { newToken, hashToken } from './tokens';
 import { viewingLinkUrl, type SessionClient } from './client-access';
 import { config } from './config';
@@ -26,39 +26,6 @@ type Db = Knex | Knex.Transaction;
 
 /** Link e-mails a studio may send per hour: generous for real work, a wall against a runaway script. */
 export const LINK_SENDS_PER_HOUR = 30;
-
-// ---------------------------------------------------------------------------------------------
-// Presigned variant URLs, remembered for the hour they are stable in
-
-const HOUR = 3600_000;
-const URL_CACHE_MAX = 50_000;
-const urlCache = new Map<string, { hour: number; url: string }>();
-
-/**
- * variantUrl signs with the time rounded down to the hour, so within one hour it returns the same
- * URL for a key; remembering it saves about half a millisecond of signing per image, which is most
- * of the time a 500-frame gallery listing would otherwise take. Lookups stay synchronous: only the
- * keys not yet signed this hour wait for signing.
- */
-async function signedUrls(objectKeys: string[]): Promise<Map<string, string>> {
-  const hour = Math.floor(Date.now() / HOUR);
-  const out = new Map<string, string>();
-  const missing: string[] = [];
-  for (const key of objectKeys) {
-    const hit = urlCache.get(key);
-    if (hit && hit.hour === hour) out.set(key, hit.url);
-    else missing.push(key);
-  }
-  if (missing.length) {
-    if (urlCache.size + missing.length > URL_CACHE_MAX) urlCache.clear();
-    await Promise.all(missing.map(async (key) => {
-      const url = await variantUrl(key);
-      urlCache.set(key, { hour, url });
-      out.set(key, url);
-    }));
-  }
-  return out;
-}
 
 // ---------------------------------------------------------------------------------------------
 // What the client sees
@@ -78,13 +45,12 @@ export async function galleryFrames(shootId: string, studioId: string): Promise<
     .join('frame_variants as p', (j) => j.on('p.frame_id', 'f.id').andOnVal('p.kind', 'proof'))
     .where({ 'f.shoot_id': shootId, 'f.studio_id': studioId })
     .orderBy([{ column: 'f.taken_at', order: 'asc', nulls: 'last' }, { column: 'f.original_name', order: 'asc' }, { column: 'f.id', order: 'asc' }])
-    .select('f.id', 'f.original_name', 't.object_key as tk', 't.width as tw', 't.height as th', 'p.object_key as pk', 'p.width as pw', 'p.height as ph');
-  const urls = await signedUrls(rows.flatMap((r) => [r.tk, r.pk]));
+    .select('f.id', 'f.original_name', 't.id as ti', 't.object_key as tk', 't.width as tw', 't.height as th', 'p.id as pi', 'p.object_key as pk', 'p.width as pw', 'p.height as ph');
   return rows.map((r) => ({
     id: r.id,
     name: r.original_name,
-    thumb: { url: urls.get(r.tk)!, width: r.tw, height: r.th },
-    proof: { url: urls.get(r.pk)!, width: r.pw, height: r.ph },
+    thumb: { url: mediaPath(r.ti, r.tk), width: r.tw, height: r.th },
+    proof: { url: mediaPath(r.pi, r.pk), width: r.pw, height: r.ph },
   }));
 }
 
@@ -278,14 +244,13 @@ export async function picksForStudio(shootId: string, studioId: string): Promise
     .leftJoin('frame_variants as t', (j) => j.on('t.frame_id', 'f.id').andOnVal('t.kind', 'thumb'))
     .where({ 'k.shoot_id': shootId, 'k.studio_id': studioId })
     .orderBy([{ column: 'f.taken_at', order: 'asc', nulls: 'last' }, { column: 'f.original_name', order: 'asc' }])
-    .select('k.frame_id', 'k.note', 'k.updated_at', 'f.original_name', 'f.hidden', 'f.state', 't.object_key as tk', 't.width as tw', 't.height as th');
-  const urls = await signedUrls(rows.filter((r) => r.tk).map((r) => r.tk));
+    .select('k.frame_id', 'k.note', 'k.updated_at', 'f.original_name', 'f.hidden', 'f.state', 't.id as ti', 't.object_key as tk', 't.width as tw', 't.height as th');
   return rows.map((r) => ({
     frameId: r.frame_id,
     name: r.original_name,
     note: r.note,
     hidden: r.hidden || r.state !== 'ready',
-    thumb: r.tk ? { url: urls.get(r.tk)!, width: r.tw, height: r.th } : null,
+    thumb: r.tk ? { url: mediaPath(r.ti, r.tk), width: r.tw, height: r.th } : null,
     updatedAt: new Date(r.updated_at).toISOString(),
   }));
 }

@@ -2,7 +2,7 @@ import { db } from './db';
 import { audit } from './audit';
 import { hashPasscode } from './client-access';
 import { conflict, notFound } from './http';
-import { variantUrl } from './media';
+import { mediaPath } from './media';
 import type { SessionMember } from './auth';
 import type { NewShootInput } from '../schemas/shoot';
 import type { FrameDto, FrameCounts, VariantKind } from '../dto';
@@ -55,15 +55,12 @@ export async function listFrames(shootId: string, studioId: string, opts: { forC
   if (opts.forClient) q.where({ state: 'ready', hidden: false });
   const frames = await q.select('*');
   const variants = frames.length
-    ? await db()('frame_variants').whereIn('frame_id', frames.map((f) => f.id)).select('frame_id', 'kind', 'object_key')
+    ? await db()('frame_variants').whereIn('frame_id', frames.map((f) => f.id)).select('id', 'frame_id', 'kind', 'object_key')
     : [];
-  // Sign every URL first, then group: grouping inside the awaits let each variant start a fresh
-  // map entry and keep only the last kind.
-  const signed = await Promise.all(variants.map(async (v) => ({ ...v, url: await variantUrl(v.object_key) })));
   const byFrame = new Map<string, Partial<Record<VariantKind, string>>>();
-  for (const v of signed) {
+  for (const v of variants) {
     const urls = byFrame.get(v.frame_id) ?? {};
-    urls[v.kind as VariantKind] = v.url;
+    urls[v.kind as VariantKind] = mediaPath(v.id, v.object_key);
     byFrame.set(v.frame_id, urls);
   }
   return frames.map((f) => frameDto(f, byFrame.get(f.id) ?? {}));
