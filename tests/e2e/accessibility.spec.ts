@@ -3,22 +3,8 @@
  * or critical violations, and the main controls are reachable by keyboard.
  */
 import { test, expect, type Page } from '@playwright/test';
-import AxeBuilder from '@axe-core/playwright';
 import { makeStudio, makeShoot, PASSWORD } from '../support/factories';
-
-async function expectNoSeriousViolations(page: Page, label: string) {
-  const result = await new AxeBuilder({ page }).withTags(['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa']).analyze();
-  const bad = result.violations.filter((v) => v.impact === 'serious' || v.impact === 'critical');
-  expect(bad.map((v) => `${label}: ${v.id} — ${v.help} (${v.nodes.map((n) => n.target.join(' ')).slice(0, 3).join(', ')})`)).toEqual([]);
-}
-
-async function signIn(page: Page, email: string) {
-  await page.goto('/signin');
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL(/\/desk/);
-}
+import { expectNoSeriousViolations, signIn } from '../support/browser';
 
 test('public pages have no serious accessibility violations @phone', async ({ page }) => {
   for (const path of ['/', '/signin', '/signup', '/no-such-page']) {

@@ -12,6 +12,7 @@ import { waitForMail } from '../support/mail';
 import { PAYMENTS } from '../support/env';
 import { db } from '../../src/lib/server/db';
 import { keys, putObject } from '../../src/lib/server/storage';
+import { signIn, hydrated } from '../support/browser';
 
 /** Frames ready for the gallery: small real JPEGs for thumbnail and proof in the object store. */
 async function readyFrames(studioId: string, shootId: string, count: number) {
@@ -28,19 +29,6 @@ async function readyFrames(studioId: string, shootId: string, count: number) {
       await db()('frame_variants').insert({ studio_id: studioId, frame_id: frame.id, kind, object_key: key, width, height, bytes: body.length });
     }
   }
-}
-
-/** Islands answer clicks only once hydrated; Astro drops an island's `ssr` attribute when it is. */
-async function hydrated(scope: Page | Locator) {
-  await expect(scope.locator('astro-island[ssr]')).toHaveCount(0);
-}
-
-async function signIn(page: Page, email: string) {
-  await page.goto('/signin');
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await expect(page).toHaveURL(/\/desk/);
 }
 
 test('a client pays for three extra retouches; the studio sees the payment and refunds it', async ({ page, browser }) => {

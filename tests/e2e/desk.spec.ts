@@ -5,14 +5,7 @@
 import { test, expect, type Page } from '@playwright/test';
 import { makeStudio, makeShoot, PASSWORD } from '../support/factories';
 import { db } from '../../src/lib/server/db';
-
-async function signIn(page: Page, email: string) {
-  await page.goto('/signin');
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await expect(page).toHaveURL(/\/desk/);
-}
+import { signIn } from '../support/browser';
 
 async function shootFor(studioId: string, client: string, title: string, stage: string, shotOn: string) {
   const made = await makeShoot(studioId, { stage });

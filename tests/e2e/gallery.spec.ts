@@ -6,7 +6,6 @@
  * Accessibility checks use axe-core (the Deque engine, WCAG 2.x A/AA rules).
  */
 import { test, expect, type Page, type Locator } from '@playwright/test';
-import AxeBuilder from '@axe-core/playwright';
 import { randomUUID } from 'node:crypto';
 import { makeStudio, makeShoot, PASSWORD } from '../support/factories';
 import { waitForMail, firstLink } from '../support/mail';
@@ -14,6 +13,7 @@ import { db } from '../../src/lib/server/db';
 import { keys, putObject } from '../../src/lib/server/storage';
 import { processFrame } from '../../src/jobs/frame-process';
 import { syntheticPortrait } from '../../scripts/lib/synthetic-portrait';
+import { expectNoSeriousViolations } from '../support/browser';
 
 /** Frames made by Fillcard's own image pipeline from synthetic portraits, so the proofs are real watermarked proofs. */
 async function pipelineFrames(studioId: string, shootId: string, count: number, seed: number) {
@@ -29,12 +29,6 @@ async function pipelineFrames(studioId: string, shootId: string, count: number, 
     expect(done, `frame ${i + 1} processed`).toEqual({ state: 'ready', error: null });
     // Capture order is the name order for these frames (no EXIF time).
   }
-}
-
-async function expectNoSeriousViolations(page: Page, label: string) {
-  const result = await new AxeBuilder({ page }).withTags(['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa']).analyze();
-  const bad = result.violations.filter((v) => v.impact === 'serious' || v.impact === 'critical');
-  expect(bad.map((v) => `${label}: ${v.id} — ${v.help} (${v.nodes.map((n) => n.target.join(' ')).slice(0, 3).join(', ')})`)).toEqual([]);
 }
 
 async function swipe(target: Locator, fromX: number, toX: number) {

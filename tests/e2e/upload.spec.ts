@@ -9,6 +9,7 @@ import { syntheticPortrait } from '../../scripts/lib/synthetic-portrait';
 import { makeStudio, PASSWORD } from '../support/factories';
 import sharp from 'sharp';
 import { db } from '../../src/lib/server/db';
+import { signIn } from '../support/browser';
 
 // Invented maker and lens names only; the values are what ExifTool writes and reads back.
 const EXIF = {
@@ -22,14 +23,6 @@ const EXIF = {
   // The EXIF group named: a bare Flash tag goes to XMP when ExifTool writes it.
   'EXIF:Flash': 1,
 };
-
-async function signIn(page: Page, email: string) {
-  await page.goto('/signin');
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await expect(page).toHaveURL(/\/desk/);
-}
 
 /** Frames named in shooting order; every tenth carries camera settings and a capture time. */
 async function makeFrames(count: number, width: number, height: number) {
