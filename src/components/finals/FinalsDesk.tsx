@@ -103,7 +103,7 @@ function Desk({ initial, limits, notice }: Props) {
 
         <section aria-labelledby="progress-heading" className="card p-4 sm:p-5">
           <div className="flex flex-wrap items-baseline justify-between gap-2">
-            <h2 id="progress-heading" className="text-title">Retouching</h2>
+            <h2 id="progress-heading" className="text-title">Finals</h2>
             <p className="text-ink-soft" data-testid="finals-counts" aria-live="polite">
               <strong className="text-ink">{data.counts.ready}</strong> of {data.counts.picks} picks have a final
               {data.counts.incoming ? ` · ${data.counts.incoming} processing` : ''}
@@ -115,6 +115,11 @@ function Desk({ initial, limits, notice }: Props) {
             <div className="h-full bg-moss transition-[width] duration-500" style={{ width: `${percent}%` }} />
           </div>
         </section>
+
+        {/* On a phone the hand-off comes right after the progress; on a wide screen it sits in the side column. */}
+        <div className="lg:hidden">
+          <HandOffPanel data={data} onChanged={refresh} idSuffix="-narrow" />
+        </div>
 
         {data.can.upload ? (
           <ShootUploader shootId={shootId} limits={uploadLimits} onActivity={setUploading} onRegistered={onRegistered} setup={setup} />
@@ -133,7 +138,9 @@ function Desk({ initial, limits, notice }: Props) {
       </div>
 
       <aside className="space-y-4">
-        <HandOffPanel data={data} onChanged={refresh} />
+        <div className="hidden lg:block">
+          <HandOffPanel data={data} onChanged={refresh} />
+        </div>
         {data.can.manage ? <ShootEnd shootId={shootId} title={data.title} stage={data.stage} /> : null}
         <p className="px-1 text-caption text-ink-faint">
           Finals are photos of people: personal data. They reach only the client of this shoot, through their viewing link, until the download date.

@@ -30,7 +30,7 @@ export default function FinalsGallery({ initial }: { initial: GalleryFinalsData 
       <section className="card p-4 sm:p-5" aria-labelledby="download-all-heading">
         <h2 id="download-all-heading" className="text-lead">Save your photos</h2>
         <p className="text-ink-soft" data-testid="download-until">
-          Downloads are open until <strong className="text-ink">{day(data.downloadUntil)}</strong>. Please keep copies of your own.
+          Downloads close on <strong className="text-ink">{day(data.downloadUntil)}</strong>: save copies of your own before then.
         </p>
         <div className="mt-4 grid gap-3 sm:grid-cols-2">
           <a className="btn-accent" href={data.zip.finalsUrl} download={data.zip.finalsName} data-testid="download-all">

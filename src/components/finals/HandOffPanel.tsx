@@ -6,7 +6,7 @@ const day = (iso: string) => new Date(iso).toLocaleDateString('en-GB', { day: 'n
 const EXTEND_CHOICES = [7, 14, 30, 60, 90];
 
 /** Handing the finals to the client, and afterwards their download date, with "download all" for the studio. */
-export default function HandOffPanel({ data, onChanged }: { data: FinalsDeskData; onChanged: () => void }) {
+export default function HandOffPanel({ data, onChanged, idSuffix = '' }: { data: FinalsDeskData; onChanged: () => void; idSuffix?: string }) {
   const [confirm, setConfirm] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState('');
@@ -60,17 +60,17 @@ export default function HandOffPanel({ data, onChanged }: { data: FinalsDeskData
   if (data.stage === 'delivered' && data.downloadUntil) {
     const closed = new Date(data.downloadUntil) < new Date();
     return (
-      <section className="card p-5" aria-labelledby="handoff-heading" data-testid="handoff">
-        <h2 id="handoff-heading" className="text-lead">Handed off</h2>
-        {link ? <NewLink link={link} /> : null}
+      <section className="card p-5" aria-labelledby={`handoff-heading${idSuffix}`} data-testid="handoff">
+        <h2 id={`handoff-heading${idSuffix}`} className="text-lead">Handed off</h2>
+        {link ? <NewLink link={link} id={`new-link${idSuffix}`} /> : null}
         <p className={closed ? 'mt-1 font-semibold text-ember' : 'mt-1 text-ink-soft'} data-testid="download-until">
           {closed ? `Downloads closed on ${day(data.downloadUntil)}. The client sees a notice with your contact details.` : `${data.clientName} can download until ${day(data.downloadUntil)}.`}
         </p>
         {data.can.handOff ? (
           <div className="mt-4">
-            <label className="label" htmlFor="extend-days">Keep downloads open longer</label>
+            <label className="label" htmlFor={`extend-days${idSuffix}`}>Keep downloads open longer</label>
             <div className="flex gap-2">
-              <select id="extend-days" className="field" value={days} onChange={(e) => setDays(Number(e.target.value))}>
+              <select id={`extend-days${idSuffix}`} className="field" value={days} onChange={(e) => setDays(Number(e.target.value))}>
                 {EXTEND_CHOICES.map((d) => <option key={d} value={d}>{d} more days</option>)}
               </select>
               <button type="button" className="btn-quiet shrink-0" disabled={busy} onClick={doExtend}>Extend</button>
@@ -95,8 +95,8 @@ export default function HandOffPanel({ data, onChanged }: { data: FinalsDeskData
   const canHandOff = data.can.handOff && ['picks_in', 'retouching'].includes(data.stage);
   const missing = counts.picks - counts.ready;
   return (
-    <section className="card p-5" aria-labelledby="handoff-heading" data-testid="handoff">
-      <h2 id="handoff-heading" className="text-lead">Hand off to {data.clientName}</h2>
+    <section className="card p-5" aria-labelledby={`handoff-heading${idSuffix}`} data-testid="handoff">
+      <h2 id={`handoff-heading${idSuffix}`} className="text-lead">Hand off to {data.clientName}</h2>
       <p className="text-ink-soft">
         {counts.picks === 0
           ? 'Once the client sends picks and their finals are uploaded, hand them off from here.'
@@ -131,15 +131,15 @@ export default function HandOffPanel({ data, onChanged }: { data: FinalsDeskData
   );
 }
 
-function NewLink({ link }: { link: string }) {
+function NewLink({ link, id }: { link: string; id: string }) {
   const [copied, setCopied] = useState(false);
   return (
     <div className="notice-ok mt-2" role="status">
       <p className="font-semibold">The old link had been withdrawn, so a new one went out with the e-mail.</p>
       <p className="mt-1 text-caption">It is shown only now.</p>
       <div className="mt-2 flex gap-2">
-        <label htmlFor="new-link" className="sr-only">The new viewing link</label>
-        <input id="new-link" className="field min-w-0 flex-1 font-mono text-caption" readOnly value={link} onFocus={(e) => e.currentTarget.select()} />
+        <label htmlFor={id} className="sr-only">The new viewing link</label>
+        <input id={id} className="field min-w-0 flex-1 font-mono text-caption" readOnly value={link} onFocus={(e) => e.currentTarget.select()} />
         <button type="button" className="btn-quiet" onClick={async () => {
           try {
             await navigator.clipboard.writeText(link);
