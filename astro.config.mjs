@@ -8,8 +8,8 @@ import tailwind from '@astrojs/tailwind';
 // only when it matches one of these; PUBLIC_ORIGIN at build time adds the production host.
 const allowedDomains = [{ hostname: '127.0.0.1' }, { hostname: 'localhost' }];
 if (process.env.PUBLIC_ORIGIN) {
-  const { hostname, protocol } = new URL(process.env.PUBLIC_ORIGIN);
-  if (!allowedDomains.some((d) => d.hostname === hostname)) allowedDomains.push({ hostname, protocol: protocol.replace(':', '') });
+  const { hostname } = new URL(process.env.PUBLIC_ORIGIN);
+  if (!allowedDomains.some((d) => d.hostname === hostname)) allowedDomains.push({ hostname });
 }
 
 export default defineConfig({

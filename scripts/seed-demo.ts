@@ -6,8 +6,8 @@ import { seedDemoFrames } from './lib/demo-frames';
 
 const knex = knexFactory(settings);
 try {
-  await seed(knex);
-  await seedDemoFrames(knex);
+  const studioId = await seed(knex);
+  if (!(await knex('frames').where({ studio_id: studioId }).first('id'))) await seedDemoFrames(knex, studioId);
   console.log('[fillcard] demo studio loaded');
 } finally {
   await knex.destroy();

@@ -61,6 +61,8 @@ async function main(): Promise<number> {
     await new Promise(() => {});
   }
   let failed = 0;
+  // Types first: a type error is a bug the other tests may not reach.
+  if (!only && passthrough.length === 0) failed += run(path.join(root, 'node_modules/.bin/astro'), ['check', '--minimumSeverity', 'error'], env) ? 1 : 0;
   if (only !== '--e2e') failed += run(path.join(root, 'node_modules/.bin/vitest'), ['run', ...passthrough], env) ? 1 : 0;
   if (only !== '--unit') failed += run(path.join(root, 'node_modules/.bin/playwright'), ['test', ...passthrough], env) ? 1 : 0;
   return failed;

@@ -8,12 +8,15 @@ import { DEMO_SIGN_INS } from '../scripts/lib/demo';
 
 export const DEMO_PASSCODE = 'harbour';
 
-export async function seed(knex: Knex): Promise<void> {
-  const existing = await knex('studios').count<{ count: string }[]>('* as count');
-  if (Number(existing[0].count) > 0) return;
+export const DEMO_STUDIO_NAME = 'Harbourlight Portraits';
+
+/** Creates the demo studio unless it exists; returns its id either way. */
+export async function seed(knex: Knex): Promise<string> {
+  const existing = await knex('studios').where({ name: DEMO_STUDIO_NAME }).first('id');
+  if (existing) return existing.id;
 
   const [studio] = await knex('studios').insert({
-    name: 'Harbourlight Portraits',
+    name: DEMO_STUDIO_NAME,
     contact_email: 'hello@harbourlight.test',
     contact_phone: '+44 20 7946 0000',
     brand_colour: '#2f5d62',
@@ -56,4 +59,5 @@ export async function seed(knex: Knex): Promise<void> {
       proof_expires_at: new Date(now + 10 * day), picks_submitted_at: new Date(now - 3 * day),
     },
   ]);
+  return studio.id;
 }

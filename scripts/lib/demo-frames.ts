@@ -35,8 +35,8 @@ async function frameFor(shootIndex: number, i: number, takenAt: Date) {
   });
 }
 
-export async function seedDemoFrames(knex: Knex): Promise<void> {
-  const shoots = await knex('shoots').orderBy('created_at').select('id', 'studio_id', 'title', 'shot_on', 'stage', 'allowance');
+export async function seedDemoFrames(knex: Knex, studioId: string): Promise<void> {
+  const shoots = await knex('shoots').where({ studio_id: studioId }).orderBy('created_at').select('id', 'studio_id', 'title', 'shot_on', 'stage', 'allowance');
   const counts: Record<string, number> = { proofing: 18, draft: 8, picks_in: 10 };
   for (const [index, shoot] of shoots.entries()) {
     const n = counts[shoot.stage] ?? 0;
