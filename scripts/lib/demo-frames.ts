@@ -30,7 +30,7 @@ async function frameFor(shootIndex: number, i: number, takenAt: Date) {
       FocalLengthIn35mmFormat: s.FocalLength,
       DateTimeOriginal: stamp,
       OffsetTimeOriginal: '+00:00',
-      Orientation: i % 7 === 3 ? 6 : 1,
+      Orientation: 1,
     },
   });
 }
@@ -54,7 +54,7 @@ export async function seedDemoFrames(knex: Knex, studioId: string): Promise<void
     }
     if (shoot.stage === 'picks_in') {
       const notes = ['Soften the flyaways, please', '', 'This one for the family wall', 'Brighten the eyes a touch', ''];
-      for (const [i, frameId] of frameIds.slice(0, 5).entries()) {
+      for (const [i, frameId] of frameIds.slice(0, 3).entries()) {
         await knex('picks').insert({ studio_id: shoot.studio_id, shoot_id: shoot.id, frame_id: frameId, note: notes[i] });
       }
     }
