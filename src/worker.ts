@@ -8,6 +8,7 @@ import { sweepOutbox } from './lib/server/mail';
 import { config } from './lib/server/config';
 import { mailSend } from './jobs/mail-send';
 import { workerJobs } from './jobs/index';
+import { abortStaleMultipartUploads, deleteOrphanUploads } from './lib/server/uploads';
 
 config(); // stop at once on a bad configuration
 const concurrency = Math.max(1, Number(process.env.WORKER_CONCURRENCY ?? 2));
@@ -27,6 +28,18 @@ const sweep = setInterval(() => {
   for (const job of workerJobs) job.sweep?.().catch((e) => console.error(`[fillcard] ${job.queue.name} sweep failed:`, e));
 }, 15_000);
 
+// Storage housekeeping once an hour (and soon after start): unfinished multipart uploads and
+// uploads never registered, both older than a day.
+const housekeeping = async () => {
+  // Stores without multipart listing (some local stand-ins) rely on a lifecycle rule instead.
+  await abortStaleMultipartUploads().catch((e) => console.error('[fillcard] could not list unfinished multipart uploads:', e.message));
+  await deleteOrphanUploads()
+    .then((n) => n && console.log(`[fillcard] removed ${n} unregistered upload(s) older than a day`))
+    .catch((e) => console.error('[fillcard] could not sweep unregistered uploads:', e));
+};
+const firstHousekeeping = setTimeout(housekeeping, 60_000);
+const hourly = setInterval(housekeeping, 3600_000);
+
 console.log(`[fillcard] worker ready (concurrency ${concurrency})`);
 
 let stopping = false;
@@ -34,6 +47,8 @@ async function stop() {
   if (stopping) return;
   stopping = true;
   clearInterval(sweep);
+  clearInterval(hourly);
+  clearTimeout(firstHousekeeping);
   await stopBoss().catch(() => null);
   await closeDb().catch(() => null);
   process.exit(0);

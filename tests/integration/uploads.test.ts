@@ -270,3 +270,23 @@ describe('uploading bad files', () => {
     expect((await settled(first.body.id)).state).toBe('ready');
   });
 });
+
+describe('storage housekeeping', () => {
+  it('deletes uploads nobody registered once they are old enough, and keeps registered ones', async () => {
+    const { deleteOrphanUploads } = await import('../../src/lib/server/uploads');
+    const { putObject, headObject, keys } = await import('../../src/lib/server/storage');
+    const { makeStudio, makeShoot } = await import('../support/factories');
+    const { db } = await import('../../src/lib/server/db');
+    const studio = await makeStudio('Housekeeping');
+    const { shoot } = await makeShoot(studio.studioId);
+    const orphan = keys.original(studio.studioId, shoot.id, 'jpg');
+    const owned = keys.original(studio.studioId, shoot.id, 'jpg');
+    await putObject(orphan, Buffer.from('not registered'), 'image/jpeg');
+    await putObject(owned, Buffer.from('registered'), 'image/jpeg');
+    await db()('frames').insert({ studio_id: studio.studioId, shoot_id: shoot.id, object_key: owned, original_name: 'kept.jpg', bytes: 10, state: 'failed' });
+    // Everything counts as old when the age limit is negative.
+    await deleteOrphanUploads(-60_000);
+    expect(await headObject(orphan)).toBeNull();
+    expect(await headObject(owned)).not.toBeNull();
+  });
+});

@@ -14,6 +14,7 @@ import { getSignedUrl } from '@aws-sdk/s3-request-presigner';
 import { config } from './config';
 import { db } from './db';
 import { keys, headObject, deleteObject, s3 } from './storage';
+import { ListObjectsV2Command } from '@aws-sdk/client-s3';
 import { badRequest, conflict, HttpError } from './http';
 import { enqueue, QUEUES } from './jobs';
 import { IMAGE_LIMITS } from './images';
@@ -167,4 +168,37 @@ export async function abortStaleMultipartUploads(olderThanMs = 24 * 3600_000) {
       await s3().send(new AbortMultipartUploadCommand({ Bucket: config().S3_BUCKET, Key: u.Key!, UploadId: u.UploadId! }));
     }
   }
+}
+
+/**
+ * Uploads that reached storage but were never registered (the browser closed in between) belong to
+ * nobody: after a day they are deleted. Uploads happen while a shoot is young, so only the upload
+ * folders of shoots changed in the last two weeks are listed; frames and finals rows own the keys.
+ */
+export async function deleteOrphanUploads(olderThanMs = 24 * 3600_000) {
+  const cutoff = Date.now() - olderThanMs;
+  const shoots = await db()('shoots').where('updated_at', '>', db().raw("now() - interval '14 days'")).orWhere('created_at', '>', db().raw("now() - interval '14 days'")).select('id', 'studio_id');
+  let deleted = 0;
+  for (const shoot of shoots) {
+    for (const folder of ['originals', 'finals']) {
+      const prefix = `${keys.shootPrefix(shoot.studio_id, shoot.id)}${folder}/`;
+      let token: string | undefined;
+      do {
+        const page = await s3().send(new ListObjectsV2Command({ Bucket: config().S3_BUCKET, Prefix: prefix, ContinuationToken: token }));
+        const old = (page.Contents ?? []).filter((o) => (o.LastModified?.getTime() ?? Date.now()) < cutoff).map((o) => o.Key!);
+        if (old.length) {
+          const owned = new Set([
+            ...(await db()('frames').whereIn('object_key', old).pluck('object_key')),
+            ...(await db()('finals').whereIn('object_key', old).pluck('object_key')),
+          ]);
+          for (const key of old.filter((k) => !owned.has(k))) {
+            await deleteObject(key);
+            deleted++;
+          }
+        }
+        token = page.IsTruncated ? page.NextContinuationToken : undefined;
+      } while (token);
+    }
+  }
+  return deleted;
 }
