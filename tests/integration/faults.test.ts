@@ -71,3 +71,37 @@ describe('faults', () => {
     expect(recovered).toBe(true);
   }, 120_000);
 });
+
+describe('object store faults', () => {
+  it('the store away during an upload: the send fails, a retry after it returns succeeds, and the frame is registered once', async () => {
+    const { objectStore } = await import('../support/stack');
+    const studio = await makeStudio('Faults');
+    const owner = await memberAgent(studio.owner.email);
+    const { makeShoot } = await import('../support/factories');
+    const { shoot } = await makeShoot(studio.studioId, { stage: 'draft' });
+    const sharp = (await import('sharp')).default;
+    const bytes = await sharp({ create: { width: 800, height: 600, channels: 3, background: '#705040' } }).jpeg().toBuffer();
+    const signRes = await owner.postJson(`/api/shoots/${shoot.id}/uploads/sign`, { method: 'PUT', key: '', fileName: 'outage.jpg', size: bytes.length });
+    const signed = await signRes.json();
+    await objectStore.stop();
+    try {
+      await expect(fetch(signed.url, { method: 'PUT', headers: signed.headers, body: new Uint8Array(bytes) })).rejects.toThrow();
+      // Registering now is refused clearly, and nothing is created.
+      const early = await owner.postJson(`/api/shoots/${shoot.id}/frames`, { key: signed.key, name: 'outage.jpg', size: bytes.length });
+      expect(early.status).toBeGreaterThanOrEqual(422);
+      expect(early.status).not.toBe(200);
+      expect(await db()('frames').where({ shoot_id: shoot.id }).count('* as n')).toEqual([{ n: 0 }]);
+    } finally {
+      await objectStore.start();
+    }
+    // The uploader retries the same signed request; then registers (twice, as a retried request would).
+    const put = await fetch(signed.url, { method: 'PUT', headers: signed.headers, body: new Uint8Array(bytes) });
+    expect(put.status).toBe(200);
+    const first = await owner.postJson(`/api/shoots/${shoot.id}/frames`, { key: signed.key, name: 'outage.jpg', size: bytes.length });
+    const second = await owner.postJson(`/api/shoots/${shoot.id}/frames`, { key: signed.key, name: 'outage.jpg', size: bytes.length });
+    expect(first.status).toBe(201);
+    expect(second.status).toBe(200);
+    expect((await first.json()).id).toBe((await second.json()).id);
+    expect(await db()('frames').where({ shoot_id: shoot.id }).count('* as n')).toEqual([{ n: 1 }]);
+  }, 120_000);
+});

@@ -290,3 +290,44 @@ describe('storage housekeeping', () => {
     expect(await headObject(owned)).not.toBeNull();
   });
 });
+
+describe('hostile uploads', () => {
+  it('an SVG is refused at signing; an SVG renamed .jpg is refused by the worker and removed', async () => {
+    const { makeStudio, makeShoot, memberAgent } = await import('../support/factories');
+    const studio = await makeStudio('Hostile uploads');
+    const { shoot } = await makeShoot(studio.studioId, { stage: 'draft' });
+    const owner = await memberAgent(studio.owner.email);
+    const svg = Buffer.from('<svg xmlns="http://www.w3.org/2000/svg" onload="alert(1)"><rect width="10" height="10"/></svg>');
+    const refused = await sign(owner, shoot.id, { fileName: 'logo.svg', size: svg.length });
+    expect(refused.status).toBe(415);
+    expect(refused.body.error).toMatch(/JPEG, PNG, TIFF and WebP/);
+    const { frameId, key } = await upload(owner, shoot.id, 'logo.jpg', svg);
+    const frame = await settled(frameId);
+    expect(frame.state).toBe('failed');
+    expect(frame.error).toMatch(/SVG|not a photo|not an image/i);
+    expect(await objectExists(key)).toBe(false);
+  });
+
+  it('a polyglot (a real JPEG that also carries HTML) becomes a frame whose proof holds no trace of the HTML', async () => {
+    const { makeStudio, makeShoot, memberAgent } = await import('../support/factories');
+    const { getObjectBuffer } = await import('../../src/lib/server/storage');
+    const sharp = (await import('sharp')).default;
+    const studio = await makeStudio('Hostile uploads');
+    const { shoot } = await makeShoot(studio.studioId, { stage: 'draft' });
+    const owner = await memberAgent(studio.owner.email);
+    const jpeg = await sharp({ create: { width: 900, height: 600, channels: 3, background: '#6b5a4a' } }).jpeg().toBuffer();
+    const html = Buffer.from('<html><body><script>alert("polyglot")</script></body></html>');
+    // A JPEG comment segment (FFFE) right after the start marker carries the HTML.
+    const segment = Buffer.concat([Buffer.from([0xff, 0xfe, (html.length + 2) >> 8, (html.length + 2) & 0xff]), html]);
+    const polyglot = Buffer.concat([jpeg.subarray(0, 2), segment, jpeg.subarray(2)]);
+    const { frameId } = await upload(owner, shoot.id, 'polyglot.jpg', polyglot);
+    const frame = await settled(frameId);
+    expect(frame.state).toBe('ready');
+    const variants = await db()('frame_variants').where({ frame_id: frameId }).select('kind', 'object_key');
+    expect(variants.length).toBe(5);
+    for (const v of variants) {
+      const bytes = await getObjectBuffer(v.object_key);
+      expect(bytes.includes('<script>'), `${v.kind} is re-encoded without the HTML`).toBe(false);
+    }
+  });
+});

@@ -69,6 +69,15 @@ export const paymentStandIn = {
   },
 };
 
+export const objectStore = {
+  pattern: 'stand-ins/object-store.ts',
+  stop() { return stopProcesses(this.pattern); },
+  async start() {
+    detached(path.join(root, 'node_modules/.bin/tsx'), [path.join(root, 'scripts/stand-ins/object-store.ts'), String(testPorts.objectStore), path.join(work, 'objects'), 'fillcard', process.env.PUBLIC_ORIGIN!], 'object-store.log');
+    await waitForPort(testPorts.objectStore, 'The object store');
+  },
+};
+
 const pgCtl = () => {
   const r = spawnSync('sh', ['-c', 'ls -d /usr/lib/postgresql/*/bin | sort -V | tail -1'], { encoding: 'utf8' });
   return path.join(r.stdout.trim(), 'pg_ctl');
