@@ -17,7 +17,7 @@ test('studio pages have no serious accessibility violations @phone', async ({ pa
   const studio = await makeStudio('Access');
   const { shoot } = await makeShoot(studio.studioId);
   await signIn(page, studio.owner.email);
-  for (const path of ['/desk', '/desk/team', '/account', `/desk/shoots/${shoot.id}`, `/desk/shoots/${shoot.id}/client`, '/desk/shoots/new']) {
+  for (const path of ['/desk', '/desk/team', '/desk/payments', '/account', `/desk/shoots/${shoot.id}`, `/desk/shoots/${shoot.id}/client`, '/desk/shoots/new']) {
     const res = await page.goto(path);
     if (res && res.status() === 404) continue; // a screen still being built
     await page.waitForLoadState('networkidle');

@@ -47,4 +47,5 @@ export const rows: Record<string, Row[]> = {
     // Studio B's own shoot: owner B reaches it, so the empty body is what is refused.
     { method: 'PUT', path: (w) => `/api/shoots/${w.shootOther}/light-notes`, body: () => ({}), expect: memberApi(404, 403, 422) },
   ],
+  'desk/payments': [{ method: 'GET', path: () => '/desk/payments', expect: memberPage(true) }],
 };
