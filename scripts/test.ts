@@ -8,7 +8,7 @@ import path from 'node:path';
 import { spawnSync } from 'node:child_process';
 import {
   root, log, startPostgres, Children, testPorts as ports, serviceEnv, startObjectStore, startMailCatcher,
-  startPaymentStandIn, runMigrations, buildApp, startApp, startWorker, waitForPort, testSlot, testWorkDir,
+  startPaymentStandIn, runMigrations, buildApp, startApp, startWorker, waitForPort, testSlot, testWorkDir, reachableDataDir,
 } from './lib/services';
 
 const args = process.argv.slice(2);
@@ -26,9 +26,11 @@ function run(cmd: string, cmdArgs: string[], env: NodeJS.ProcessEnv) {
 
 async function main(): Promise<number> {
   // A stale cluster from an interrupted run is stopped and thrown away.
-  if (existsSync(path.join(work, 'postgres', 'postmaster.pid'))) {
-    spawnSync('sh', ['-c', `runuser -u postgres -- /usr/lib/postgresql/*/bin/pg_ctl -D ${work}/postgres -m immediate stop || pg_ctl -D ${work}/postgres -m immediate stop`], { stdio: 'ignore' });
+  const cluster = reachableDataDir(path.join(work, 'postgres'));
+  if (existsSync(path.join(cluster, 'postmaster.pid'))) {
+    spawnSync('sh', ['-c', `runuser -u postgres -- /usr/lib/postgresql/*/bin/pg_ctl -D ${cluster} -m immediate stop || pg_ctl -D ${cluster} -m immediate stop`], { stdio: 'ignore' });
   }
+  rmSync(cluster, { recursive: true, force: true });
   rmSync(work, { recursive: true, force: true });
   rmSync(artifacts, { recursive: true, force: true });
   mkdirSync(work, { recursive: true });

@@ -8,6 +8,7 @@ import { setTimeout as sleep } from 'node:timers/promises';
 import path from 'node:path';
 import os from 'node:os';
 import net from 'node:net';
+import { createHash } from 'node:crypto';
 import pg from 'pg';
 
 export const root = path.resolve(import.meta.dirname, '../..');
@@ -60,6 +61,7 @@ export async function startPostgres(opts: {
   fast?: boolean;
 }): Promise<PostgresHandle> {
   const bin = ensurePostgresInstalled();
+  opts = { ...opts, dataDir: reachableDataDir(opts.dataDir) };
   const initdb = path.join(bin, 'initdb');
   const pgCtl = path.join(bin, 'pg_ctl');
   const socketDir = path.join(os.tmpdir(), `fillcard-pg-${opts.port}`);
@@ -95,6 +97,22 @@ export async function startPostgres(opts: {
       asPostgresUser(pgCtl, ['-D', opts.dataDir, '-m', 'fast', 'stop'], { quiet: true });
     },
   };
+}
+
+/**
+ * As root the server runs as the postgres OS user, which must be able to reach the data folder. A
+ * checkout under a private home folder is out of its reach; then the cluster lives under /var/tmp.
+ */
+export function reachableDataDir(dataDir: string): string {
+  if (!isRoot) return dataDir;
+  const parent = path.dirname(dataDir);
+  mkdirSync(parent, { recursive: true });
+  const ok = spawnSync('runuser', ['-u', 'postgres', '--', 'test', '-x', parent]).status === 0;
+  if (ok) return dataDir;
+  const alt = path.join('/var/tmp', 'fillcard-postgres', createHash('sha256').update(dataDir).digest('hex').slice(0, 12));
+  mkdirSync(path.dirname(alt), { recursive: true, mode: 0o755 });
+  log(`the postgres user cannot reach ${parent}; keeping the cluster in ${alt}`);
+  return alt;
 }
 
 function chownPostgres(dir: string) {

@@ -6,7 +6,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import { openSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { setTimeout as sleep } from 'node:timers/promises';
-import { root, waitForPort, testPorts, testWorkDir } from '../../scripts/lib/services';
+import { root, waitForPort, testPorts, testWorkDir, reachableDataDir } from '../../scripts/lib/services';
 import { ARTIFACTS } from './env';
 
 const work = process.env.FILLCARD_TEST_WORK ?? testWorkDir;
@@ -89,12 +89,12 @@ function asPostgres(args: string[]) {
 
 export const database = {
   stop() {
-    const r = asPostgres(['-D', path.join(work, 'postgres'), '-m', 'fast', 'stop']);
+    const r = asPostgres(['-D', reachableDataDir(path.join(work, 'postgres')), '-m', 'fast', 'stop']);
     if (r.status !== 0) throw new Error(`pg_ctl stop failed: ${r.stderr}`);
   },
   start() {
     const settings = `-c listen_addresses=127.0.0.1 -p ${testPorts.postgres} -k /tmp/fillcard-pg-${testPorts.postgres} -c fsync=off -c synchronous_commit=off -c full_page_writes=off`;
-    const r = asPostgres(['-D', path.join(work, 'postgres'), '-l', path.join(work, 'postgres', 'server.log'), '-o', settings, '-w', 'start']);
+    const r = asPostgres(['-D', reachableDataDir(path.join(work, 'postgres')), '-l', path.join(reachableDataDir(path.join(work, 'postgres')), 'server.log'), '-o', settings, '-w', 'start']);
     if (r.status !== 0) throw new Error(`pg_ctl start failed: ${r.stderr}`);
   },
 };
