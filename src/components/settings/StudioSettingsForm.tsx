@@ -22,7 +22,7 @@ type Props = { initial: StudioSettingsDto };
 
 export const TAX_CAUTION = 'Fillcard computes tax from your rate; you stay responsible for local tax rules.';
 export const RETENTION_CAUTION =
-  'Photos of people are personal data. Deleting a shoot removes its photos and records. Consent and model releases, especially for minors, follow your local law.';
+  'Photos of people are personal data. Deleting a shoot removes its photos and records. An owner deletes a shoot from its Finals tab by typing its title; archiving only closes the client’s gallery. Consent and model releases, especially for minors, follow your local law.';
 
 const toHex = (n: number) => Math.max(0, Math.min(255, Math.round(n))).toString(16).padStart(2, '0');
 
