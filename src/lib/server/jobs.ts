@@ -42,7 +42,11 @@ export function boss(opts: { worker?: boolean } = {}): Promise<PgBoss> {
   return bossPromise;
 }
 
-/** Sends a job once per key: a second send for the same key while one waits is dropped. */
+/**
+ * Sends a job. On these standard queues a repeated send is not dropped by pg-boss; every handler is
+ * idempotent instead (frames and finals are claimed, e-mails are sent once per outbox row), so a
+ * repeat costs a no-op. The key labels the job for inspection.
+ */
 export async function enqueue(queue: (typeof QUEUES)[keyof typeof QUEUES], data: object, singletonKey?: string) {
   const b = await boss();
   return b.send(queue.name, data, { singletonKey });
