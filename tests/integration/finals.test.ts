@@ -180,6 +180,13 @@ describe('finals: upload, match, hand off, download', () => {
     const desk = await (await retoucher.get(`/api/shoots/${shootId}/finals`)).json();
     expect(desk.unmatched.map((u: { name: string }) => u.name)).toEqual(['garden-portrait-for-zoe.jpg']);
     expect(desk.downloads).toBeNull(); // the log is the owner's
+    // Whoever matches by hand can look at the file first; it opens in the browser, not as a download.
+    const view = await retoucher.get(`/api/shoots/${shootId}/finals/${finalIds.c}/file`);
+    expect(view.status).toBe(302);
+    const shown = await fetch(view.headers.get('location')!);
+    expect(shown.headers.get('content-type')).toBe('image/jpeg');
+    expect(shown.headers.get('content-disposition')).toBeNull();
+    expect(Buffer.from(await shown.arrayBuffer()).equals(uploads['garden-portrait-for-zoe.jpg']!.bytes)).toBe(true);
     expect(desk.picks.map((p: { note: string }) => p.note)).toEqual(['Note 1: soften the shadow', 'Note 2: soften the shadow', 'Note 3: soften the shadow']);
 
     const matched = await retoucher.postJson(`/api/shoots/${shootId}/finals/${finalIds.c}/match`, { frameId: frames['HLP_2043.jpg'] });

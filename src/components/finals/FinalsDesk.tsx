@@ -34,6 +34,7 @@ function Desk({ initial, limits, notice }: Props) {
   const shootId = initial.shootId;
   const queryClient = useQueryClient();
   const [uploading, setUploading] = useState(false);
+  const [replacing, setReplacing] = useState(false);
   const [lastUploads, setLastUploads] = useState<{ name: string; outcome: string; pick: string | null }[]>([]);
   const query = useQuery({
     queryKey: finalsKey(shootId),
@@ -121,8 +122,15 @@ function Desk({ initial, limits, notice }: Props) {
           <HandOffPanel data={data} onChanged={refresh} idSuffix="-narrow" />
         </div>
 
-        {data.can.upload ? (
+        {data.can.upload && (data.stage !== 'delivered' || replacing) ? (
           <ShootUploader shootId={shootId} limits={uploadLimits} onActivity={setUploading} onRegistered={onRegistered} setup={setup} />
+        ) : data.can.upload ? (
+          <section className="card flex flex-wrap items-center justify-between gap-3 p-4 sm:p-5" aria-label="Replace a delivered final">
+            <p className="min-w-0 flex-1 text-ink-soft">
+              Need to fix a delivered final? Upload a new version: the client sees it once it is ready, and the old one is removed.
+            </p>
+            <button type="button" className="btn-quiet" onClick={() => setReplacing(true)}>Upload a new version</button>
+          </section>
         ) : data.uploadClosed && data.stage !== 'archived' ? (
           <p className="notice-caution">{data.uploadClosed}</p>
         ) : null}
@@ -221,8 +229,8 @@ function RetouchList({ shootId, picks, stage, canChange, onChanged }: { shootId:
   }
   return (
     <section aria-labelledby="retouch-heading">
-      <h2 id="retouch-heading" className="text-title">Picks to retouch</h2>
-      <ol className="mt-3 space-y-3" aria-label="Picks to retouch" data-testid="retouch-list">
+      <h2 id="retouch-heading" className="text-title">{stage === 'delivered' || stage === 'archived' ? 'Picks and their finals' : 'Picks to retouch'}</h2>
+      <ol className="mt-3 space-y-3" aria-labelledby="retouch-heading" data-testid="retouch-list">
         {picks.map((p) => {
           const chip = STATE_CHIP[p.state];
           const shown = p.incoming ?? p.final;
@@ -336,7 +344,10 @@ function UnmatchedItem({ shootId, file, picks, waiting, canChange, onChanged }: 
       <div className="flex flex-wrap items-start justify-between gap-2">
         <div className="min-w-0">
           <p className="break-words font-semibold">{file.name}</p>
-          <p className="text-caption text-ink-faint">{formatBytes(file.bytes)}{file.uploadedBy ? ` · uploaded by ${file.uploadedBy}` : ''}</p>
+          <p className="text-caption text-ink-faint">
+            {formatBytes(file.bytes)}{file.uploadedBy ? ` · uploaded by ${file.uploadedBy}` : ''} ·{' '}
+            <a href={`/api/shoots/${shootId}/finals/${file.id}/file`} target="_blank" rel="noopener" className="text-clay-dark underline">View the file</a>
+          </p>
           {s && s.hasFinal ? (
             <p className="mt-1 text-ink-soft">Looks like a new version of <strong>{s.name}</strong> (frame {pad(s.number)}), which has a final already.</p>
           ) : s ? (
@@ -393,7 +404,7 @@ function UnmatchedItem({ shootId, file, picks, waiting, canChange, onChanged }: 
           ) : (
             <p className="mt-2 text-caption text-ink-faint">Every pick has a final already.</p>
           )}
-          <button type="button" className="mt-2 text-caption text-clay-dark underline" onClick={() => setShowAll((v) => !v)}>
+          <button type="button" className="mt-1 inline-flex min-h-[44px] items-center text-caption text-clay-dark underline" onClick={() => setShowAll((v) => !v)}>
             {showAll ? 'Show only picks waiting for a final' : 'Show all picks'}
           </button>
         </div>

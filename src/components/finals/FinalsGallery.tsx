@@ -73,6 +73,7 @@ function FinalCard({ final: f }: { final: GalleryFinal }) {
               <span>Crops for posting and print</span>
               <span aria-hidden="true" className="transition-transform group-open:rotate-180">▾</span>
             </summary>
+            <p className="px-1 text-caption text-ink-faint">Tap a crop to save it at full resolution.</p>
             <ul className="mt-2 grid grid-cols-4 gap-2">
               {f.crops.map((c) => (
                 <li key={c.kind} className="min-w-0">

@@ -39,6 +39,10 @@ export const rows: Record<string, Row[]> = {
     { method: 'GET', path: (w) => `/api/shoots/${w.shootA}/finals/${NO_SUCH}/download?kind=full`, expect: memberApi(404, 404, 404) },
     { method: 'GET', path: (w) => `/api/shoots/${w.shootA}/finals/${NO_SUCH}/download?kind=poster`, expect: memberApi(400, 400, 404) },
   ],
+  'api/shoots/[shootId]/finals/[finalId]/file': [
+    { method: 'GET', path: (w) => `/api/shoots/${w.shootA}/finals/${NO_SUCH}/file`, expect: memberApi(404, 404, 404) },
+    { method: 'GET', path: (w) => `/api/shoots/${w.shootA}/finals/not-an-id/file`, expect: memberApi(404, 404, 404) },
+  ],
   'api/shoots/[shootId]/finals/zip': [
     { method: 'GET', path: (w) => `/api/shoots/${w.shootA}/finals/zip`, expect: memberApi(409, 409, 404) },
     { method: 'GET', path: (w) => `/api/shoots/${w.shootA}/finals/zip?set=crops`, expect: memberApi(409, 409, 404) },
