@@ -187,7 +187,7 @@ export async function benchZip(opts: { finals?: number; megabytes?: number; roun
   const studio = await makeStudio('Bench');
   const { shoot } = await makeShoot(studio.studioId, { stage: 'delivered' });
   await db()('shoots').where({ id: shoot.id }).update({ download_until: new Date(Date.now() + 86_400_000) });
-  const frames = objectKeys.map((key, i) => ({
+  const frames = objectKeys.map((_key, i) => ({
     studio_id: studio.studioId, shoot_id: shoot.id, object_key: `bench-frame/${shoot.id}/${i}.jpg`,
     original_name: `bench-${String(i).padStart(3, '0')}.jpg`, bytes: bytesEach, state: 'ready', width: 4000, height: 5000,
   }));

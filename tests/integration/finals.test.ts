@@ -213,6 +213,7 @@ describe('finals: upload, match, hand off, download', () => {
   });
 
   it('cuts crops with exact ratios (to the pixel), the 8×10 print at full resolution', async () => {
+    // Social shapes 4:5, 1:1, 9:16: common practice, no published source; an 8×10 print is 4:5.
     const ratio: Record<string, [number, number]> = { crop_4x5: [4, 5], crop_1x1: [1, 1], crop_9x16: [9, 16], print_8x10: [8, 10] };
     for (const id of [finalIds.a, finalIds.b, finalIds.c]) {
       const rows = await db()('final_variants').where({ final_id: id }).whereIn('kind', Object.keys(ratio));
