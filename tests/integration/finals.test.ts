@@ -383,6 +383,15 @@ describe('finals: upload, match, hand off, download', () => {
     expect((await client.get(`/api/gallery/${shootId}/finals`)).status).toBe(200);
   });
 
+  it('limits the ZIPs a client starts in an hour (429 with Retry-After)', async () => {
+    const { client_id: clientId } = await db()('shoots').where({ id: shootId }).first('client_id');
+    await db()('rate_limits').insert({ key: `zip:client:${clientId}:${shootId}`, hits: 30, window_started_at: new Date() }).onConflict('key').merge();
+    const res = await client.get(`/api/gallery/${shootId}/finals/zip`);
+    expect(res.status).toBe(429);
+    expect(Number(res.headers.get('retry-after'))).toBeGreaterThan(0);
+    await db()('rate_limits').where({ key: `zip:client:${clientId}:${shootId}` }).delete();
+  });
+
   it('hands off partly only with a yes, and issues a new link when the old one was withdrawn', async () => {
     const made = await makeShoot(studio.studioId, { stage: 'draft' });
     const id = made.shoot.id;
