@@ -8,7 +8,7 @@ import path from 'node:path';
 import { spawnSync } from 'node:child_process';
 import {
   root, log, startPostgres, Children, testPorts as ports, serviceEnv, startObjectStore, startMailCatcher,
-  startPaymentStandIn, runMigrations, buildApp, startApp, startWorker, waitForPort, testSlot, testWorkDir, reachableDataDir,
+  startPaymentStandIn, runMigrations, buildApp, startApp, startWorker, waitForPort, testSlot, testWorkDir, reachableDataDir, stopStackLeftovers,
 } from './lib/services';
 
 const args = process.argv.slice(2);
@@ -72,6 +72,7 @@ async function main(): Promise<number> {
 
 async function shutdown(code: number) {
   await children.stopAll();
+  if (postgres) stopStackLeftovers(postgres.url);
   postgres?.stop();
   process.exit(code);
 }

@@ -3,7 +3,7 @@
  * store, the mail catcher and the payment stand-in. Shared by `npm start` and `npm test`.
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
-import { existsSync, mkdirSync, readdirSync, chownSync, chmodSync, openSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, chownSync, chmodSync, openSync, readFileSync } from 'node:fs';
 import { setTimeout as sleep } from 'node:timers/promises';
 import path from 'node:path';
 import os from 'node:os';
@@ -251,4 +251,19 @@ export const WORKER_ENV = { MALLOC_ARENA_MAX: '2' };
 
 export function startWorker(children: Children, env: NodeJS.ProcessEnv, logFile?: string) {
   return children.spawn('worker', tsx, [path.join(root, 'src/worker.ts')], { env: { ...env, ...WORKER_ENV }, logFile });
+}
+
+/**
+ * Processes started for this stack outside the runner's own children (tests that stop and restart a
+ * stand-in start detached copies): every process whose environment holds this stack's database URL.
+ */
+export function stopStackLeftovers(databaseUrl: string) {
+  const mine = `DATABASE_URL=${databaseUrl}`;
+  for (const entry of readdirSync('/proc')) {
+    const pid = Number(entry);
+    if (!pid || pid === process.pid || pid === process.ppid) continue;
+    try {
+      if (readFileSync(`/proc/${pid}/environ`, 'utf8').split('\0').includes(mine)) process.kill(pid, 'SIGTERM');
+    } catch { /* gone, or not ours to read */ }
+  }
 }
