@@ -38,6 +38,7 @@ export async function seed(knex: Knex): Promise<string> {
     { studio_id: studio.id, name: 'Mira Calloway', email: 'mira.calloway@example.test', phone: '+44 20 7946 0101' },
     { studio_id: studio.id, name: 'Jonah Brightwater', email: 'jonah.b@example.test' },
     { studio_id: studio.id, name: 'Priya Lindqvist-Amari', email: 'priya.la@example.test' },
+    { studio_id: studio.id, name: 'Oren Vellacourt', email: 'oren.v@example.test' },
   ]).returning(['id', 'name']);
 
   const day = 86400_000;
@@ -57,6 +58,12 @@ export async function seed(knex: Knex): Promise<string> {
       studio_id: studio.id, client_id: clients[2].id, title: 'Graduation portraits', shot_on: new Date(now - 20 * day),
       stage: 'picks_in', allowance: 3, extra_price_minor: 4000, currency: 'GBP', tax_rate_bp: 2000, tax_mode: 'inclusive',
       proof_expires_at: new Date(now + 10 * day), picks_submitted_at: new Date(now - 3 * day),
+    },
+    {
+      studio_id: studio.id, client_id: clients[3].id, title: 'Autumn portraits by the window', shot_on: new Date(now - 40 * day),
+      stage: 'delivered', allowance: 3, extra_price_minor: 3500, currency: 'GBP', tax_rate_bp: 2000, tax_mode: 'inclusive',
+      proof_expires_at: new Date(now - 10 * day), picks_submitted_at: new Date(now - 30 * day), link_sent_at: new Date(now - 38 * day),
+      download_until: new Date(now + 50 * day),
     },
   ]);
   return studio.id;

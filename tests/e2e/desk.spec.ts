@@ -5,7 +5,7 @@
 import { test, expect, type Page } from '@playwright/test';
 import { makeStudio, makeShoot, PASSWORD } from '../support/factories';
 import { db } from '../../src/lib/server/db';
-import { signIn } from '../support/browser';
+import { signIn, hydrated } from '../support/browser';
 
 async function shootFor(studioId: string, client: string, title: string, stage: string, shotOn: string) {
   const made = await makeShoot(studioId, { stage });
@@ -160,6 +160,7 @@ test('removing a client whose shoot is not archived is refused with the reason',
   const { client } = await makeShoot(studio.studioId, { stage: 'proofing' });
   await signIn(page, studio.owner.email);
   await page.goto(`/desk/clients/${client.id}`);
+  await hydrated(page);
   await page.getByRole('button', { name: 'Remove client…' }).click();
   await page.getByRole('button', { name: /Yes, archive/ }).click();
   await expect(page.getByRole('alert')).toContainText('archive their shoots first');
@@ -170,6 +171,7 @@ test('an owner changes the brand colour; a failing one is refused with its ratio
   const studio = await makeStudio('Settings');
   await signIn(page, studio.owner.email);
   await page.goto('/desk/settings');
+  await hydrated(page);
   await expect(page.getByRole('heading', { name: 'Studio settings' })).toBeVisible();
   await expect(page.getByText('Fillcard computes tax from your rate; you stay responsible for local tax rules.')).toBeVisible();
   await expect(page.getByText(/Consent and model releases, especially for minors, follow your local law/)).toBeVisible();
@@ -213,6 +215,7 @@ test('an owner sketches light notes with the keyboard, sees key-to-fill, saves a
   const { shoot } = await makeShoot(studio.studioId);
   await signIn(page, studio.owner.email);
   await page.goto(`/desk/shoots/${shoot.id}/light`);
+  await hydrated(page);
   await expect(page.getByRole('link', { name: 'Light notes' })).toHaveAttribute('aria-current', 'page');
 
   await page.getByRole('button', { name: 'Add flash' }).click();

@@ -9,6 +9,8 @@ export async function signIn(page: Page, email: string, password = PASSWORD) {
   await page.getByLabel('Password').fill(password);
   await page.getByRole('button', { name: 'Sign in' }).click();
   await expect(page).toHaveURL(/\/desk/);
+  // The desk is an island: clicks before it hydrates would do nothing.
+  await hydrated(page);
 }
 
 /** Islands answer clicks only once hydrated; Astro drops an island's `ssr` attribute when it is. */
