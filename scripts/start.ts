@@ -55,6 +55,9 @@ async function main() {
   Demo sign-ins:
 ${sign}
 
+  Clients have no password: on a shoot's "Client & picks" tab, send the viewing link, then open
+  the e-mail in the mail inbox above (the demo passcode is "harbour").
+
   Press Ctrl-C to stop. Data stays in .data/ for next time.
 `);
 }

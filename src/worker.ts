@@ -32,7 +32,8 @@ const sweep = setInterval(() => {
 // uploads never registered, both older than a day.
 const housekeeping = async () => {
   // Stores without multipart listing (some local stand-ins) rely on a lifecycle rule instead.
-  await abortStaleMultipartUploads().catch((e) => console.error('[fillcard] could not list unfinished multipart uploads:', e.message));
+  await abortStaleMultipartUploads().catch((e) =>
+    console.log(`[fillcard] note: this object store does not list unfinished multipart uploads (${e.name}); give the bucket a lifecycle rule that aborts them after a day.`));
   await deleteOrphanUploads()
     .then((n) => n && console.log(`[fillcard] removed ${n} unregistered upload(s) older than a day`))
     .catch((e) => console.error('[fillcard] could not sweep unregistered uploads:', e));
