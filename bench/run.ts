@@ -20,8 +20,7 @@ const tsx = path.join(root, 'node_modules/.bin/tsx');
 const sections: string[] = [];
 
 function machine() {
-  const cpu = os.cpus()[0]?.model ?? 'unknown CPU';
-  return `${os.cpus().length} × ${cpu}, ${Math.round(os.totalmem() / 2 ** 30)} GiB, Node ${process.version}, load average at start ${os.loadavg().map((l) => l.toFixed(1)).join(' ')}`;
+  return `${os.cpus().length} cores, ${Math.round(os.totalmem() / 2 ** 30)} GiB, Node ${process.version}, load average at start ${os.loadavg().map((l) => l.toFixed(1)).join(' ')}`;
 }
 
 function runBench(title: string, file: string, args: string[], env: NodeJS.ProcessEnv) {
