@@ -17,6 +17,8 @@ import { pathToFileURL } from 'node:url';
 import { db, closeDb } from '../src/lib/server/db';
 import { issueViewingLink } from '../src/lib/server/client-access';
 import { keys } from '../src/lib/server/storage';
+// mulberry32, seeded: the same toggles on every run.
+import { prng } from '../scripts/lib/synthetic-portrait';
 
 const CLIENTS = 50;
 const TOGGLES_PER_CLIENT = 100;
@@ -47,18 +49,6 @@ function assertLoopback(origin: string) {
 
 const percentile = (sorted: number[], p: number) => (sorted.length ? sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)] : NaN);
 const round = (v: number, d = 1) => Math.round(v * 10 ** d) / 10 ** d;
-
-/** mulberry32: the same toggles on every run. */
-function prng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** A cookie-keeping client of one shoot, opened through its viewing link. */
 class Client {

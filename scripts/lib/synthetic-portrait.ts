@@ -26,7 +26,7 @@ export interface SyntheticPortraitOptions {
 }
 
 /** mulberry32: small, fast, and the same sequence for the same seed everywhere. */
-function prng(seed: number): () => number {
+export function prng(seed: number): () => number {
   let a = seed >>> 0;
   return () => {
     a = (a + 0x6d2b79f5) >>> 0;

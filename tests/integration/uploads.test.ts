@@ -7,7 +7,6 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createHash } from 'node:crypto';
-import { deflateSync } from 'node:zlib';
 import sharp from 'sharp';
 import { syntheticPortrait } from '../../scripts/lib/synthetic-portrait';
 import { makeStudio, makeShoot, memberAgent, type TestStudio } from '../support/factories';
@@ -15,6 +14,7 @@ import type { Agent } from '../support/http';
 import { db } from '../../src/lib/server/db';
 import { keys, listKeys } from '../../src/lib/server/storage';
 import { UPLOAD_LIMITS } from '../../src/lib/server/uploads';
+import { pngDeclaring } from '../fixtures/image-tools';
 
 interface Signed {
   url: string;
@@ -61,39 +61,6 @@ async function settled(frameId: string, timeoutMs = 90_000) {
 
 async function objectExists(key: string) {
   return (await listKeys(key)).includes(key);
-}
-
-function crc32(bytes: Buffer): number {
-  let c = ~0;
-  for (const b of bytes) {
-    c ^= b;
-    for (let k = 0; k < 8; k++) c = c & 1 ? (c >>> 1) ^ 0xedb88320 : c >>> 1;
-  }
-  return ~c >>> 0;
-}
-
-function pngChunk(type: string, body: Buffer): Buffer {
-  const len = Buffer.alloc(4);
-  len.writeUInt32BE(body.length);
-  const typed = Buffer.concat([Buffer.from(type, 'latin1'), body]);
-  const crc = Buffer.alloc(4);
-  crc.writeUInt32BE(crc32(typed));
-  return Buffer.concat([len, typed, crc]);
-}
-
-/** A tiny PNG whose header (IHDR, per the PNG specification) declares width×height RGB pixels. */
-function pngDeclaring(width: number, height: number): Buffer {
-  const ihdr = Buffer.alloc(13);
-  ihdr.writeUInt32BE(width, 0);
-  ihdr.writeUInt32BE(height, 4);
-  ihdr[8] = 8;
-  ihdr[9] = 2;
-  return Buffer.concat([
-    Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
-    pngChunk('IHDR', ihdr),
-    pngChunk('IDAT', deflateSync(Buffer.alloc(1 + 3 * 64))),
-    pngChunk('IEND', Buffer.alloc(0)),
-  ]);
 }
 
 describe('uploading bad files', () => {
