@@ -39,12 +39,6 @@ export async function dispatchMail(ids: string[]) {
   }
 }
 
-export async function sendMailNow(mail: OutgoingMail, trx?: Knex.Transaction) {
-  const id = await queueMail(mail, trx);
-  if (!trx) await dispatchMail([id]);
-  return id;
-}
-
 let transporter: Transporter | undefined;
 function smtp(): Transporter {
   const c = config();

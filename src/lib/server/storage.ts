@@ -4,8 +4,7 @@
  */
 import {
   S3Client, HeadObjectCommand, GetObjectCommand, PutObjectCommand, DeleteObjectsCommand, DeleteObjectCommand,
-  ListObjectsV2Command, CreateMultipartUploadCommand, UploadPartCommand, CompleteMultipartUploadCommand,
-  AbortMultipartUploadCommand, ListPartsCommand,
+  ListObjectsV2Command,
 } from '@aws-sdk/client-s3';
 import { getSignedUrl } from '@aws-sdk/s3-request-presigner';
 import { randomUUID } from 'node:crypto';
@@ -117,32 +116,6 @@ export async function presignGet(key: string, opts: { expiresIn?: number; downlo
     }),
     { expiresIn: opts.expiresIn ?? 300, signingDate: opts.signingDate },
   );
-}
-
-export async function presignPut(key: string, contentType: string, expiresIn = 900) {
-  return getSignedUrl(signer(), new PutObjectCommand({ Bucket: bucket(), Key: key, ContentType: contentType }), { expiresIn });
-}
-
-export async function createMultipart(key: string, contentType: string) {
-  const r = await s3().send(new CreateMultipartUploadCommand({ Bucket: bucket(), Key: key, ContentType: contentType }));
-  return r.UploadId!;
-}
-
-export async function presignPart(key: string, uploadId: string, partNumber: number, expiresIn = 900) {
-  return getSignedUrl(signer(), new UploadPartCommand({ Bucket: bucket(), Key: key, UploadId: uploadId, PartNumber: partNumber }), { expiresIn });
-}
-
-export async function listParts(key: string, uploadId: string) {
-  const r = await s3().send(new ListPartsCommand({ Bucket: bucket(), Key: key, UploadId: uploadId }));
-  return (r.Parts ?? []).map((p) => ({ PartNumber: p.PartNumber!, ETag: p.ETag!, Size: p.Size }));
-}
-
-export async function completeMultipart(key: string, uploadId: string, parts: { PartNumber: number; ETag: string }[]) {
-  await s3().send(new CompleteMultipartUploadCommand({ Bucket: bucket(), Key: key, UploadId: uploadId, MultipartUpload: { Parts: parts } }));
-}
-
-export async function abortMultipart(key: string, uploadId: string) {
-  await s3().send(new AbortMultipartUploadCommand({ Bucket: bucket(), Key: key, UploadId: uploadId }));
 }
 
 /**

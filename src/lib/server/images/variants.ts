@@ -76,14 +76,6 @@ export function proofBase(img: RawImage): Promise<RawImage> {
   return resizeRaw(img, size.width, size.height);
 }
 
-/**
- * A watermarked proof from its proof-sized base: sRGB, no metadata. With `consumeBase` the
- * watermark is drawn into the base's own pixels (saving a copy); nothing may read them afterwards.
- */
-export async function proofFromBase(base: RawImage, watermark: WatermarkSpec, consumeBase = false): Promise<VariantOut> {
-  return encode('proof', fromRaw(await watermarkedBase(base, watermark, consumeBase)), PROOF_QUALITY);
-}
-
 /** The base with the watermark drawn in; with `consumeBase` into the base's own pixels. */
 export async function watermarkedBase(base: RawImage, watermark: WatermarkSpec, consumeBase = false): Promise<RawImage> {
   const overlay = await watermarkOverlay(watermark, base.width, base.height);
