@@ -8,6 +8,21 @@ import { DEMO_SIGN_INS } from '../scripts/lib/demo';
 
 export const DEMO_PASSCODE = 'harbour';
 
+/** The demo's light notes: a flash bounced off a board as key, a closer board as fill (invented setup). */
+export const DEMO_LIGHT_NOTES = {
+  room: { widthM: 2.4, depthM: 4 },
+  subject: { x: 1.2, y: 2.6 },
+  sources: [
+    { id: 'key-flash', kind: 'flash', label: 'Key flash', power: 4, x: 0.4, y: 1.6, aimsAt: 'the key board', modifier: 'bare head' },
+    { id: 'key-board', kind: 'bounce_board', label: 'Key board', x: 0.6, y: 2.1, aimsAt: 'the subject’s face, camera left' },
+    { id: 'fill-board', kind: 'bounce_board', label: 'Fill board', x: 2.1, y: 3.0, aimsAt: 'the shadow side' },
+  ],
+  keyId: 'key-board',
+  fillId: 'fill-board',
+  camera: { shutterS: 1 / 250, fNumber: 5.6, iso: 100, focalLengthMm: 85 },
+  notes: 'Backdrop 1.4 m behind the subject. Key flash at 1/2 was a stop hot; 1/4 was right.',
+};
+
 export const DEMO_STUDIO_NAME = 'Harbourlight Portraits';
 
 /** Creates the demo studio unless it exists; returns its id either way. */
@@ -48,6 +63,7 @@ export async function seed(knex: Knex): Promise<string> {
       studio_id: studio.id, client_id: clients[0].id, title: 'Spring headshots', shot_on: new Date(now - 6 * day),
       stage: 'proofing', allowance: 5, extra_price_minor: 3500, currency: 'GBP', tax_rate_bp: 2000, tax_mode: 'inclusive',
       proof_expires_at: new Date(now + 24 * day), passcode_hash: await hashPassword(DEMO_PASSCODE), link_sent_at: new Date(now - 5 * day),
+      light_notes: JSON.stringify(DEMO_LIGHT_NOTES),
     },
     {
       studio_id: studio.id, client_id: clients[1].id, title: 'Family sitting in the garden room', shot_on: new Date(now - 1 * day),
