@@ -8,8 +8,9 @@ import { test, expect, type Browser, type Page } from '@playwright/test';
 import { execFile } from 'node:child_process';
 import { promisify } from 'node:util';
 import { syntheticPortrait } from '../../scripts/lib/synthetic-portrait';
-import { makeStudio, makeShoot, memberAgent, PASSWORD, type TestStudio } from '../support/factories';
+import { makeStudio, makeShoot, memberAgent, type TestStudio } from '../support/factories';
 import type { Agent } from '../support/http';
+import { hydrated, signIn } from '../support/browser';
 import { db } from '../../src/lib/server/db';
 
 const run = promisify(execFile);
@@ -46,11 +47,7 @@ async function shootInRetouching(studio: TestStudio) {
 
 async function signedIn(browser: Browser, email: string): Promise<Page> {
   const page = await (await browser.newContext()).newPage();
-  await page.goto('/signin');
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await expect(page).toHaveURL(/\/desk/);
+  await signIn(page, email);
   return page;
 }
 
@@ -68,6 +65,7 @@ test('the retoucher uploads and matches finals, the owner hands off, the client 
   // The retoucher: the pick list with notes, then finals through the real uploader.
   const retoucher = await signedIn(browser, studio.retoucher.email);
   await retoucher.goto(`/desk/shoots/${shoot.shoot.id}/finals`);
+  await hydrated(retoucher);
   const list = retoucher.getByTestId('retouch-list');
   await expect(list.getByTestId('retouch-item')).toHaveCount(3);
   await expect(list.getByText('Soften the shadow under the chin.')).toBeVisible();
@@ -104,6 +102,7 @@ test('the retoucher uploads and matches finals, the owner hands off, the client 
   // The owner hands off.
   const owner = await signedIn(browser, studio.owner.email);
   await owner.goto(`/desk/shoots/${shoot.shoot.id}/finals`);
+  await hydrated(owner);
   await owner.getByRole('button', { name: 'Hand off finals' }).click();
   await expect(owner.getByRole('status').filter({ hasText: 'Handed off.' })).toBeVisible();
   await expect(owner.locator('[data-stage]').first()).toHaveAttribute('data-stage', 'delivered');
@@ -113,6 +112,7 @@ test('the retoucher uploads and matches finals, the owner hands off, the client 
   // The client, through the same viewing link as before.
   const client = await (await browser.newContext()).newPage();
   await client.goto(`/g/${shoot.token}`);
+  await hydrated(client);
   await expect(client.getByRole('heading', { name: 'Spring headshots' })).toBeVisible();
   await expect(client.getByTestId('final-card')).toHaveCount(3);
   await expect(client.getByTestId('download-until')).toContainText('Downloads close on');
@@ -152,6 +152,7 @@ test('@phone the client saves a ratio crop of a final on a phone', async ({ page
   expect((await shoot.owner.postJson(`/api/shoots/${shoot.shoot.id}/hand-off`, {})).status).toBe(200);
 
   await page.goto(`/g/${shoot.token}`);
+  await hydrated(page);
   await expect(page.getByTestId('download-all')).toBeVisible();
   const card = page.getByTestId('final-card').nth(1);
   await card.getByText('Crops for posting and print').click();

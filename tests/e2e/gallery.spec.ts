@@ -13,7 +13,7 @@ import { db } from '../../src/lib/server/db';
 import { keys, putObject } from '../../src/lib/server/storage';
 import { processFrame } from '../../src/jobs/frame-process';
 import { syntheticPortrait } from '../../scripts/lib/synthetic-portrait';
-import { expectNoSeriousViolations } from '../support/browser';
+import { expectNoSeriousViolations, hydrated } from '../support/browser';
 
 /** Frames made by Fillcard's own image pipeline from synthetic portraits, so the proofs are real watermarked proofs. */
 async function pipelineFrames(studioId: string, shootId: string, count: number, seed: number) {
@@ -54,6 +54,7 @@ test('an owner sends the link; the client picks with notes in the viewer, compar
   await owner.getByRole('button', { name: 'Sign in' }).click();
   await expect(owner).toHaveURL(/\/desk/);
   await owner.goto(`/desk/shoots/${shoot.id}/client`);
+  await hydrated(owner);
   await expect(owner.getByTestId('link-state')).toHaveText('Not sent yet.');
   await owner.getByLabel('A short personal message').fill('Thank you for Saturday — take your time choosing.');
   await owner.getByRole('button', { name: 'Send the viewing link' }).click();
@@ -67,6 +68,7 @@ test('an owner sends the link; the client picks with notes in the viewer, compar
   expect(mail.text).not.toContain('birch-31');
   const link = firstLink(mail, /http:\/\/[^\s"<]+\/g\/[A-Za-z0-9_-]+/);
   await page.goto(link);
+  await hydrated(page);
   await expect(page).toHaveURL(new RegExp(`/gallery/${shoot.id}/passcode$`));
   await page.getByLabel('Passcode').fill('birch-31');
   await page.getByRole('button', { name: 'Open the gallery' }).click();
@@ -141,6 +143,7 @@ test('an owner sends the link; the client picks with notes in the viewer, compar
   await expect.poll(async () => (await db()('picks as k').join('frames as f', 'f.id', 'k.frame_id').where('k.shoot_id', shoot.id).orderBy('f.original_name').pluck('f.original_name')))
     .toEqual(['NL_0001.jpg', 'NL_0005.jpg']);
   await page.reload();
+  await hydrated(page);
   await expect(page.getByRole('button', { name: 'Pick NL_0001.jpg' })).toHaveAttribute('aria-pressed', 'true');
   await expect(page.getByRole('button', { name: 'Pick NL_0005.jpg' })).toHaveAttribute('aria-pressed', 'true');
 
@@ -167,6 +170,7 @@ test('an owner sends the link; the client picks with notes in the viewer, compar
 
   // The owner's tab lists the picks with the note, and can reopen them.
   await owner.reload();
+  await hydrated(owner);
   await expect(owner.getByTestId('picks-count')).toContainText('2 picked');
   await expect(owner.getByTestId('pick-note')).toHaveText('Soften the flyaways <please> & keep the freckles');
   await owner.getByRole('button', { name: 'Reopen picks' }).click();

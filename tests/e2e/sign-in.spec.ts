@@ -2,6 +2,7 @@ import { test, expect } from '@playwright/test';
 import { randomUUID } from 'node:crypto';
 import { waitForMail, firstLink } from '../support/mail';
 import { makeStudio, makeShoot, PASSWORD } from '../support/factories';
+import { hydrated } from '../support/browser';
 import { db } from '../../src/lib/server/db';
 
 test('a photographer signs up, signs out and signs in again @phone', async ({ page }) => {
@@ -49,6 +50,7 @@ test('an owner invites a retoucher, who accepts from the e-mail', async ({ page,
   const other = await browser.newContext();
   const p2 = await other.newPage();
   await p2.goto(link);
+  await hydrated(p2);
   await p2.getByLabel('Your name').fill('Sol Marrow');
   await p2.getByLabel('Choose a password').fill('retouch all day 42');
   await p2.getByRole('button', { name: 'Join the studio' }).click();
@@ -67,6 +69,7 @@ test('a client enters by viewing link and passcode; wrong passcode and expired l
   const studio = await makeStudio('Gallery');
   const { shoot, token } = await makeShoot(studio.studioId, { passcode: 'lantern7' });
   await page.goto(`/g/${token}`);
+  await hydrated(page);
   await expect(page).toHaveURL(new RegExp(`/gallery/${shoot.id}/passcode$`));
   await page.getByLabel('Passcode').fill('nope');
   await page.getByRole('button', { name: 'Open the gallery' }).click();
