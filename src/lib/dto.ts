@@ -4,7 +4,21 @@ import type { Stage } from './schemas/shoot';
 export type FrameState = 'waiting' | 'processing' | 'ready' | 'failed';
 export type VariantKind = 'thumb' | 'proof' | 'crop_4x5' | 'crop_1x1' | 'crop_9x16';
 
-export interface FrameDto {
+/** The camera settings a frame's EXIF gives, as the pipeline stores them and the API sends them. */
+export interface CameraSettings {
+  cameraMake: string | null;
+  cameraModel: string | null;
+  lens: string | null;
+  focalLengthMm: number | null;
+  focalLength35mm: number | null;
+  fNumber: number | null;
+  exposureTimeS: number | null;
+  exposureBiasEv: number | null;
+  iso: number | null;
+  flashFired: boolean | null;
+}
+
+export interface FrameDto extends CameraSettings {
   id: string;
   name: string;
   state: FrameState;
@@ -15,16 +29,6 @@ export interface FrameDto {
   bytes: number;
   takenAt: string | null;
   takenAtOffset: string | null;
-  cameraMake: string | null;
-  cameraModel: string | null;
-  lens: string | null;
-  focalLengthMm: number | null;
-  focalLength35mm: number | null;
-  fNumber: number | null;
-  exposureTimeS: number | null;
-  iso: number | null;
-  exposureBiasEv: number | null;
-  flashFired: boolean | null;
   ev100: number | null;
   meanLuminance: number | null;
   clippedShare: number | null;

@@ -237,10 +237,9 @@ describe('payment stand-in with the official stripe SDK', () => {
     });
   }
 
-  beforeAll(async () => {
-    await receiver.start();
-    stateDir = mkdtempSync(path.join(os.tmpdir(), 'fillcard-payments-'));
-    standIn = await startStandIn({
+  /** The stand-in's settings for these tests; its state file survives a restart. */
+  function standInEnv(): Record<string, string> {
+    return {
       PAYMENTS_PORT: '0',
       STRIPE_SECRET_KEY: KEY,
       STRIPE_WEBHOOK_SECRET: SECRET,
@@ -248,9 +247,13 @@ describe('payment stand-in with the official stripe SDK', () => {
       PAYMENTS_WEBHOOK_URL: '',
       PAYMENTS_PUBLIC_URL: '',
       PAYMENTS_STATE_FILE: path.join(stateDir, 'state.json'),
-      PAYMENTS_WEBHOOK_ATTEMPTS: '4',
-      PAYMENTS_WEBHOOK_BACKOFF_MS: '20',
-    });
+    };
+  }
+
+  beforeAll(async () => {
+    await receiver.start();
+    stateDir = mkdtempSync(path.join(os.tmpdir(), 'fillcard-payments-'));
+    standIn = await startStandIn({ ...standInEnv(), PAYMENTS_WEBHOOK_ATTEMPTS: '4', PAYMENTS_WEBHOOK_BACKOFF_MS: '20' });
     // The app's payments module reads these on first use.
     process.env.STRIPE_API_BASE = standIn.base;
     process.env.STRIPE_SECRET_KEY = KEY;
@@ -514,15 +517,7 @@ describe('payment stand-in with the official stripe SDK', () => {
 
   it('keeps sessions across a restart when given a state file, and stops cleanly on SIGTERM', async () => {
     expect(await standIn.stop()).toBe(0);
-    standIn = await startStandIn({
-      PAYMENTS_PORT: '0',
-      STRIPE_SECRET_KEY: KEY,
-      STRIPE_WEBHOOK_SECRET: SECRET,
-      PUBLIC_ORIGIN: receiver.origin,
-      PAYMENTS_WEBHOOK_URL: '',
-      PAYMENTS_PUBLIC_URL: '',
-      PAYMENTS_STATE_FILE: path.join(stateDir, 'state.json'),
-    });
+    standIn = await startStandIn(standInEnv());
     const restarted = sdkFor(standIn);
     const session = await restarted.checkout.sessions.retrieve(paidSessionId);
     expect(session.status).toBe('complete');

@@ -7,6 +7,7 @@ import HandOffPanel from './HandOffPanel';
 import ShootEnd from './ShootEnd';
 import DownloadsLog from './DownloadsLog';
 import type { DeskFinal, FinalsDeskData, RetouchItem, UnmatchedFinal } from './types';
+import ProgressBar from '../ui/ProgressBar';
 
 interface Props {
   initial: FinalsDeskData;
@@ -90,7 +91,6 @@ function Desk({ initial, limits, notice }: Props) {
   );
   const [uploadLimits] = useState<UploadLimits>(() => ({ ...limits, roomForFrames: 1000 }));
   const waitingPicks = data.picks.filter((p) => !p.final && (!p.incoming || p.incoming.state === 'failed'));
-  const percent = data.counts.picks ? Math.round((data.counts.ready / data.counts.picks) * 100) : 0;
 
   return (
     <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_22rem]">
@@ -112,9 +112,7 @@ function Desk({ initial, limits, notice }: Props) {
               {data.counts.unmatched ? <span className="font-semibold text-amber"> · {data.counts.unmatched} to match</span> : null}
             </p>
           </div>
-          <div className="mt-3 h-2.5 overflow-hidden rounded-full bg-paper-deep" role="progressbar" aria-label="Picks with a final" aria-valuemin={0} aria-valuemax={data.counts.picks} aria-valuenow={data.counts.ready}>
-            <div className="h-full bg-moss transition-[width] duration-500" style={{ width: `${percent}%` }} />
-          </div>
+          <ProgressBar label="Picks with a final" value={data.counts.ready} max={data.counts.picks} segments={[{ value: data.counts.ready, className: 'bg-moss' }]} />
         </section>
 
         {/* On a phone the hand-off comes right after the progress; on a wide screen it sits in the side column. */}

@@ -1,7 +1,8 @@
 import { useEffect, useId, useRef } from 'react';
 import { useModal } from './use-modal';
-import { CloseMark, PickMark } from './icons';
+import { PickMark } from './icons';
 import type { GalleryFrame, GalleryPick } from '../../lib/schemas/picks';
+import { VIEWER_DIALOG_CLASS, ViewerCloseButton } from './viewer-chrome';
 
 interface Props {
   pair: [GalleryFrame, GalleryFrame];
@@ -24,14 +25,12 @@ export default function CompareFrames({ pair, picks, canPick, onKeep, onClose }:
       ref={ref}
       aria-labelledby={titleId}
       onKeyDown={trapTab}
-      className="m-0 h-[100dvh] max-h-none w-screen max-w-none border-0 bg-[#161d21] p-0 text-paper backdrop:bg-[#161d21]"
+      className={VIEWER_DIALOG_CLASS}
     >
       <div className="flex h-full flex-col">
         <header className="flex items-center gap-3 px-3 py-2 sm:px-4">
           <h2 id={titleId} className="min-w-0 flex-1 font-sans text-body font-semibold text-paper">Compare two frames</h2>
-          <button type="button" onClick={onClose} className="btn !min-h-[44px] !px-3 text-paper hover:bg-white/10" aria-label="Close the comparison">
-            <CloseMark /><span className="hidden sm:inline">Close</span>
-          </button>
+          <ViewerCloseButton label="Close the comparison" onClick={onClose} />
         </header>
         <div className="grid min-h-0 flex-1 grid-rows-2 gap-2 px-2 pb-2 sm:grid-cols-2 sm:grid-rows-1 sm:gap-4 sm:px-4 sm:pb-4">
           {pair.map((frame, i) => {

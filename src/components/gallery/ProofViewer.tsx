@@ -1,7 +1,9 @@
 import { useEffect, useId, useRef, useState, type KeyboardEvent, type PointerEvent } from 'react';
 import { useModal } from './use-modal';
-import { Chevron, CloseMark, PickMark } from './icons';
+import { frameSteps } from '../ui/frame-steps';
+import { Chevron, PickMark } from './icons';
 import { MAX_NOTE, type GalleryFrame, type GalleryPick } from '../../lib/schemas/picks';
+import { VIEWER_DIALOG_CLASS, ViewerCloseButton } from './viewer-chrome';
 
 interface Props {
   frames: GalleryFrame[];
@@ -32,8 +34,7 @@ export default function ProofViewer({ frames, index, picks, canPick, saving, onI
   const toggleRef = useRef<HTMLButtonElement>(null);
   const swipe = useRef<{ x: number; y: number; id: number } | null>(null);
   const pick = picks.get(frame.id);
-  const hasPrev = index > 0;
-  const hasNext = index < frames.length - 1;
+  const { go, onArrowKey, hasPrev, hasNext } = frameSteps(index, frames.length, onIndex);
 
   useEffect(() => {
     toggleRef.current?.focus();
@@ -49,22 +50,9 @@ export default function ProofViewer({ frames, index, picks, canPick, saving, onI
     }
   }, [index, frames]);
 
-  const go = (delta: number) => {
-    const next = index + delta;
-    if (next >= 0 && next < frames.length) onIndex(next);
-  };
-
   const onKeyDown = (e: KeyboardEvent<HTMLDialogElement>) => {
     trapTab(e);
-    const inField = e.target instanceof HTMLTextAreaElement || e.target instanceof HTMLInputElement;
-    if (inField || e.altKey || e.ctrlKey || e.metaKey) return;
-    if (e.key === 'ArrowRight') {
-      e.preventDefault();
-      go(1);
-    } else if (e.key === 'ArrowLeft') {
-      e.preventDefault();
-      go(-1);
-    }
+    onArrowKey(e);
   };
 
   const onPointerDown = (e: PointerEvent) => {
@@ -85,7 +73,7 @@ export default function ProofViewer({ frames, index, picks, canPick, saving, onI
       ref={ref}
       aria-labelledby={titleId}
       onKeyDown={onKeyDown}
-      className="m-0 h-[100dvh] max-h-none w-screen max-w-none border-0 bg-[#161d21] p-0 text-paper backdrop:bg-[#161d21]"
+      className={VIEWER_DIALOG_CLASS}
     >
       <div className="flex h-full flex-col lg:flex-row">
         <div className="flex min-h-0 flex-1 flex-col">
@@ -94,9 +82,7 @@ export default function ProofViewer({ frames, index, picks, canPick, saving, onI
               <span className="font-semibold tabular-nums" data-testid="viewer-counter">{index + 1} of {frames.length}</span>
               <span className="ml-2 truncate text-caption text-paper/70">{frame.name}</span>
             </h2>
-            <button type="button" onClick={() => onClose(frame.id)} className="btn !min-h-[44px] !px-3 text-paper hover:bg-white/10" aria-label="Close the viewer">
-              <CloseMark /><span className="hidden sm:inline">Close</span>
-            </button>
+            <ViewerCloseButton label="Close the viewer" onClick={() => onClose(frame.id)} />
           </header>
           <div
             className="relative min-h-0 flex-1 select-none"

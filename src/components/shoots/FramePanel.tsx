@@ -3,6 +3,7 @@ import type { FrameDto, VariantKind } from '../../lib/dto';
 import { RATIOS, cropRect, type FocusPoint } from '../../lib/ratios';
 import { ApiError, deleteFrame, patchFrame } from './api';
 import { frameFacts } from './frame-facts';
+import { frameSteps } from '../ui/frame-steps';
 
 interface Props {
   frames: FrameDto[];
@@ -53,23 +54,7 @@ export default function FramePanel({ frames, index, canEdit, onClose, onNavigate
 
   const focus = pending ?? frame.focus ?? { x: 0.5, y: 0.5 };
   const editable = canEdit && frame.state === 'ready';
-  const go = (delta: number) => {
-    const next = index + delta;
-    if (next >= 0 && next < frames.length) onNavigate(next);
-  };
-
-  function onDialogKey(e: KeyboardEvent) {
-    if (e.defaultPrevented) return;
-    const tag = (e.target as HTMLElement).tagName;
-    if (tag === 'INPUT' || tag === 'TEXTAREA' || tag === 'SELECT') return;
-    if (e.key === 'ArrowRight') {
-      e.preventDefault();
-      go(1);
-    } else if (e.key === 'ArrowLeft') {
-      e.preventDefault();
-      go(-1);
-    }
-  }
+  const { go, onArrowKey, hasPrev, hasNext } = frameSteps(index, frames.length, onNavigate);
 
   async function run(action: () => Promise<unknown>, done: string) {
     setBusy(true);
@@ -105,7 +90,7 @@ export default function FramePanel({ frames, index, canEdit, onClose, onNavigate
         e.preventDefault();
         onClose();
       }}
-      onKeyDown={onDialogKey}
+      onKeyDown={onArrowKey}
       onClick={(e) => {
         if (e.target === dialogRef.current) onClose();
       }}
@@ -123,10 +108,10 @@ export default function FramePanel({ frames, index, canEdit, onClose, onNavigate
               {frame.hidden ? ' · hidden from the client' : ''}
             </p>
           </div>
-          <button type="button" className="btn-quiet !px-3" onClick={() => go(-1)} disabled={index === 0} aria-label="Previous frame">
+          <button type="button" className="btn-quiet !px-3" onClick={() => go(-1)} disabled={!hasPrev} aria-label="Previous frame">
             <span aria-hidden="true">←</span>
           </button>
-          <button type="button" className="btn-quiet !px-3" onClick={() => go(1)} disabled={index === frames.length - 1} aria-label="Next frame">
+          <button type="button" className="btn-quiet !px-3" onClick={() => go(1)} disabled={!hasNext} aria-label="Next frame">
             <span aria-hidden="true">→</span>
           </button>
           <button type="button" className="btn-primary !px-3" onClick={onClose} aria-label="Close">

@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import type { FrameCounts, FrameDto } from '../../lib/dto';
 import { ApiError, deleteFrame, retryFrame } from './api';
+import ProgressBar from '../ui/ProgressBar';
 
 interface Props {
   counts: FrameCounts;
@@ -48,18 +49,13 @@ export default function ProcessingProgress({ counts, failed, canFix, onChanged }
           <span>{counts.total} in all</span>
         </p>
       </div>
-      <div
-        className="mt-3 flex h-2.5 overflow-hidden rounded-full bg-paper-deep"
-        role="progressbar"
-        aria-label="Processing progress"
-        aria-valuemin={0}
-        aria-valuemax={counts.total}
-        aria-valuenow={done}
-        aria-valuetext={`${done} of ${counts.total} frames processed`}
-      >
-        <div className="h-full bg-moss transition-[width] duration-500" style={{ width: `${(counts.ready / counts.total) * 100}%` }} />
-        <div className="h-full bg-ember transition-[width] duration-500" style={{ width: `${(counts.failed / counts.total) * 100}%` }} />
-      </div>
+      <ProgressBar
+        label="Processing progress"
+        value={done}
+        max={counts.total}
+        valueText={`${done} of ${counts.total} frames processed`}
+        segments={[{ value: counts.ready, className: 'bg-moss' }, { value: counts.failed, className: 'bg-ember' }]}
+      />
       <p className="mt-1 text-caption text-ink-faint">
         {working
           ? `${percent}% done. Each frame gets a thumbnail, a watermarked proof and three ratio crops; you can keep working meanwhile.`

@@ -7,6 +7,7 @@ import '@uppy/core/css/style.min.css';
 import '@uppy/dashboard/css/style.min.css';
 import './uploader.css';
 import { formatBytes } from './frame-facts';
+import ProgressBar from '../ui/ProgressBar';
 
 export interface UploadLimits {
   maxBytes: number;
@@ -363,16 +364,7 @@ function UploadSummary({ uppy }: { uppy: Uppy<Meta, Body> }) {
           {formatBytes(p.bytesSent)} of {formatBytes(p.bytesTotal)} · {percent}%
         </span>
       </div>
-      <div
-        className="mt-1 h-2 overflow-hidden rounded-full bg-paper-deep"
-        role="progressbar"
-        aria-label="Upload progress"
-        aria-valuemin={0}
-        aria-valuemax={100}
-        aria-valuenow={percent}
-      >
-        <div className="h-full rounded-full bg-clay transition-[width] duration-300" style={{ width: `${percent}%` }} />
-      </div>
+      <ProgressBar label="Upload progress" value={percent} max={100} className="mt-1 h-2" segments={[{ value: percent, className: 'rounded-full bg-clay' }]} />
     </div>
   );
 }

@@ -28,6 +28,19 @@ export async function galleryPageState(astro: AstroGlobal, shootId: string): Pro
   return { kind: 'open', client, shoot, studio };
 }
 
+/**
+ * The state for a gallery page behind the passcode: a redirect to the passcode screen when it is
+ * still owed, otherwise the state, with the response status set for a missing session or a closed gallery.
+ */
+export async function galleryPage(astro: AstroGlobal): Promise<Response | Exclude<GalleryPage, { kind: 'passcode' }>> {
+  const shootId = astro.params.shootId ?? '';
+  const state = await galleryPageState(astro, shootId);
+  if (state.kind === 'passcode') return astro.redirect(`/gallery/${shootId}/passcode`, 303);
+  if (state.kind === 'no-session') astro.response.status = 401;
+  if (state.kind === 'closed') astro.response.status = 410;
+  return state;
+}
+
 export async function studioForGallery(studioId: string): Promise<GalleryStudio> {
   return db()('studios').where({ id: studioId }).first('name', 'brand_colour', 'contact_email', 'contact_phone');
 }

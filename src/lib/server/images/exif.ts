@@ -1,19 +1,10 @@
 import exifr from 'exifr';
 import sharp from 'sharp';
 import { sniffImageType } from './signature';
+import type { CameraSettings } from '../../dto';
 
 /** Camera settings and capture facts of a frame, as stored with it. */
-export interface FrameExif {
-  cameraMake: string | null;
-  cameraModel: string | null;
-  lens: string | null;
-  focalLengthMm: number | null;
-  focalLength35mm: number | null;
-  fNumber: number | null;
-  exposureTimeS: number | null;
-  exposureBiasEv: number | null;
-  iso: number | null;
-  flashFired: boolean | null;
+export interface FrameExif extends CameraSettings {
   /**
    * When the shutter fired. With an offset recorded this is the true instant; without one the
    * camera's wall-clock reading is stored as if it were UTC, so showing it in UTC shows what the
