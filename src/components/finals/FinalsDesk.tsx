@@ -1,6 +1,6 @@
 import { useCallback, useMemo, useRef, useState } from 'react';
 import { QueryClient, QueryClientProvider, useQuery, useQueryClient } from '@tanstack/react-query';
-import ShootUploader, { type UploadLimits, type UploaderSetup } from '../shoots/ShootUploader';
+import ShootUploader, { countedWords, type UploadLimits, type UploaderSetup } from '../shoots/ShootUploader';
 import { formatBytes } from '../shoots/frame-facts';
 import { FinalsApiError, fetchFinals, finalsKey, matchFinal, removeFinal } from './api';
 import HandOffPanel from './HandOffPanel';
@@ -72,19 +72,7 @@ function Desk({ initial, limits, notice }: Props) {
       intro: 'Keep each original’s name in the file name (HLP_2041-edit.jpg): Fillcard matches it to its pick. Others you match by hand below.',
       problemsHeading: (n) => (n === 1 ? '1 file was not taken' : `${n} files were not taken`),
       note: `Retouched JPEG, PNG, TIFF or WebP at full size, up to ${formatBytes(limits.maxBytes)} each. Delivered as sRGB JPEG with ratio crops made at each frame’s focus point.`,
-      strings: {
-        dropPasteFiles: 'Drop finals here or %{browseFiles}',
-        dashboardTitle: 'Finals uploader',
-        xFilesSelected: { 0: '%{smart_count} final selected', 1: '%{smart_count} finals selected' },
-        uploadingXFiles: { 0: 'Sending %{smart_count} final', 1: 'Sending %{smart_count} finals' },
-        processingXFiles: { 0: 'Matching %{smart_count} final', 1: 'Matching %{smart_count} finals' },
-        filesUploadedOfTotal: { 0: '%{complete} of %{smart_count} final sent', 1: '%{complete} of %{smart_count} finals sent' },
-        uploadXFiles: { 0: 'Send %{smart_count} final', 1: 'Send %{smart_count} finals' },
-        uploadXNewFiles: { 0: 'Send +%{smart_count} final', 1: 'Send +%{smart_count} finals' },
-        xMoreFilesAdded: { 0: '%{smart_count} more final added', 1: '%{smart_count} more finals added' },
-        addMoreFiles: 'Add more finals',
-        dropHint: 'Drop the finals here',
-      },
+      strings: countedWords('final', 'finals', { one: 'Matching %{smart_count} final', many: 'Matching %{smart_count} finals' }),
       restrictionStrings: { exceedsSize: '%{file} is larger than the %{size} a final may have' },
     }),
     [shootId, limits.maxBytes],

@@ -1,4 +1,4 @@
-import { useId, useState } from 'react';
+import { useId, useState, type ReactNode } from 'react';
 import { useForm, type FieldErrors, type Resolver } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { newShootSchema, type NewShootInput } from '../../lib/schemas/shoot';
@@ -185,19 +185,15 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
     setServerError(data.error ?? `The shoot could not be created (error ${res.status}). Please try again.`);
   }
 
-  const fieldError = (name: FieldName) =>
-    errors[name]?.message ? (
-      <p id={`${ids}-${name}-error`} className="mt-1 text-caption font-semibold text-ember">
-        {errors[name]!.message}
-      </p>
-    ) : null;
   const describedBy = (name: FieldName, hint?: boolean) =>
     [errors[name] ? `${ids}-${name}-error` : null, hint ? `${ids}-${name}-hint` : null].filter(Boolean).join(' ') || undefined;
-  const input = (name: FieldName) => ({
+  const input = (name: FieldName, hint = false) => ({
     id: `${ids}-${name}`,
     'aria-invalid': errors[name] ? true : undefined,
+    'aria-describedby': describedBy(name, hint),
     ...register(name),
   });
+  const fieldProps = (name: FieldName) => ({ id: `${ids}-${name}`, error: errors[name]?.message });
 
   return (
     <form onSubmit={handleSubmit(submit)} noValidate className="space-y-6" aria-describedby={serverError ? `${ids}-server` : undefined}>
@@ -221,11 +217,8 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
           </label>
         </div>
         {clientKind === 'existing' ? (
-          <div className="mt-4">
-            <label className="label" htmlFor={`${ids}-clientId`}>
-              Client
-            </label>
-            <select className="field" {...input('clientId')} aria-describedby={describedBy('clientId')}>
+          <Field {...fieldProps('clientId')} label="Client" className="mt-4">
+            <select className="field" {...input('clientId')}>
               <option value="">Choose a client…</option>
               {clients.map((c) => (
                 <option key={c.id} value={c.id}>
@@ -233,27 +226,15 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
                 </option>
               ))}
             </select>
-            {fieldError('clientId')}
-          </div>
+          </Field>
         ) : (
           <div className="mt-4 grid gap-4 sm:grid-cols-2">
-            <div>
-              <label className="label" htmlFor={`${ids}-clientName`}>
-                Name
-              </label>
-              <input className="field" autoComplete="off" maxLength={120} {...input('clientName')} aria-describedby={describedBy('clientName')} />
-              {fieldError('clientName')}
-            </div>
-            <div>
-              <label className="label" htmlFor={`${ids}-clientEmail`}>
-                E-mail
-              </label>
-              <input className="field" type="email" autoComplete="off" maxLength={254} {...input('clientEmail')} aria-describedby={describedBy('clientEmail', true)} />
-              <p id={`${ids}-clientEmail-hint`} className="mt-1 text-caption text-ink-faint">
-                The viewing link goes to this address.
-              </p>
-              {fieldError('clientEmail')}
-            </div>
+            <Field {...fieldProps('clientName')} label="Name">
+              <input className="field" autoComplete="off" maxLength={120} {...input('clientName')} />
+            </Field>
+            <Field {...fieldProps('clientEmail')} label="E-mail" hint="The viewing link goes to this address.">
+              <input className="field" type="email" autoComplete="off" maxLength={254} {...input('clientEmail', true)} />
+            </Field>
           </div>
         )}
         <p className="mt-4 text-caption text-ink-faint">
@@ -265,20 +246,12 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
         <legend className="sr-only">Sitting</legend>
         <h2 className="text-title">Sitting</h2>
         <div className="mt-4 grid gap-4 sm:grid-cols-[2fr_1fr]">
-          <div>
-            <label className="label" htmlFor={`${ids}-title`}>
-              Title
-            </label>
-            <input className="field" maxLength={160} placeholder="Family portraits, spring" {...input('title')} aria-describedby={describedBy('title')} />
-            {fieldError('title')}
-          </div>
-          <div>
-            <label className="label" htmlFor={`${ids}-shotOn`}>
-              Date of the shoot
-            </label>
-            <input className="field" type="date" {...input('shotOn')} aria-describedby={describedBy('shotOn')} />
-            {fieldError('shotOn')}
-          </div>
+          <Field {...fieldProps('title')} label="Title">
+            <input className="field" maxLength={160} placeholder="Family portraits, spring" {...input('title')} />
+          </Field>
+          <Field {...fieldProps('shotOn')} label="Date of the shoot">
+            <input className="field" type="date" {...input('shotOn')} />
+          </Field>
         </div>
       </fieldset>
 
@@ -286,66 +259,40 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
         <legend className="sr-only">Package</legend>
         <h2 className="text-title">Package</h2>
         <div className="mt-4 grid gap-4 sm:grid-cols-3">
-          <div>
-            <label className="label" htmlFor={`${ids}-allowance`}>
-              Retouches included
-            </label>
-            <input className="field" inputMode="numeric" {...input('allowance')} aria-describedby={describedBy('allowance', true)} />
-            <p id={`${ids}-allowance-hint`} className="mt-1 text-caption text-ink-faint">
-              The allowance: picks up to this number cost nothing extra.
-            </p>
-            {fieldError('allowance')}
-          </div>
-          <div>
-            <label className="label" htmlFor={`${ids}-extraPrice`}>
-              Price per extra retouch
-            </label>
+          <Field {...fieldProps('allowance')} label="Retouches included" hint="The allowance: picks up to this number cost nothing extra.">
+            <input className="field" inputMode="numeric" {...input('allowance', true)} />
+          </Field>
+          <Field {...fieldProps('extraPrice')} label="Price per extra retouch" hint={digits === 0 ? `In whole ${currency}, e.g. 3000.` : `In ${currency}, e.g. 25${digits === 2 ? '.00' : '.' + '0'.repeat(digits)}.`}>
             <div className="flex">
               <input
                 className="field rounded-r-none"
                 inputMode="decimal"
-                {...input('extraPrice')}
-                aria-describedby={describedBy('extraPrice', true)}
+                {...input('extraPrice', true)}
               />
               <span className="inline-flex items-center rounded-r-card border border-l-0 border-paper-edge bg-paper-deep px-3 text-ink-soft" aria-hidden="true">
                 {currency}
               </span>
             </div>
-            <p id={`${ids}-extraPrice-hint`} className="mt-1 text-caption text-ink-faint">
-              {digits === 0 ? `In whole ${currency}, e.g. 3000.` : `In ${currency}, e.g. 25${digits === 2 ? '.00' : '.' + '0'.repeat(digits)}.`}
-            </p>
-            {fieldError('extraPrice')}
-          </div>
-          <div>
-            <label className="label" htmlFor={`${ids}-currency`}>
-              Currency
-            </label>
-            <select className="field" {...input('currency')} aria-describedby={describedBy('currency')}>
+          </Field>
+          <Field {...fieldProps('currency')} label="Currency">
+            <select className="field" {...input('currency')}>
               {SUPPORTED_CURRENCIES.map((c) => (
                 <option key={c} value={c}>
                   {c} — {currencyName(c)}
                 </option>
               ))}
             </select>
-            {fieldError('currency')}
-          </div>
+          </Field>
         </div>
         <div className="mt-4 grid gap-4 sm:grid-cols-3">
-          <div>
-            <label className="label" htmlFor={`${ids}-taxRate`}>
-              Tax rate
-            </label>
+          <Field {...fieldProps('taxRate')} label="Tax rate" hint="0 when you charge no tax.">
             <div className="flex">
-              <input className="field rounded-r-none" inputMode="decimal" {...input('taxRate')} aria-describedby={describedBy('taxRate', true)} />
+              <input className="field rounded-r-none" inputMode="decimal" {...input('taxRate', true)} />
               <span className="inline-flex items-center rounded-r-card border border-l-0 border-paper-edge bg-paper-deep px-3 text-ink-soft" aria-hidden="true">
                 %
               </span>
             </div>
-            <p id={`${ids}-taxRate-hint`} className="mt-1 text-caption text-ink-faint">
-              0 when you charge no tax.
-            </p>
-            {fieldError('taxRate')}
-          </div>
+          </Field>
           <div className="sm:col-span-2">
             <span className="label" id={`${ids}-taxMode-label`}>
               Your prices
@@ -367,26 +314,12 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
         <legend className="sr-only">Proofs</legend>
         <h2 className="text-title">Proofs</h2>
         <div className="mt-4 grid gap-4 sm:grid-cols-2">
-          <div>
-            <label className="label" htmlFor={`${ids}-proofExpiresOn`}>
-              Proofs close after
-            </label>
-            <input className="field" type="date" {...input('proofExpiresOn')} aria-describedby={describedBy('proofExpiresOn', true)} />
-            <p id={`${ids}-proofExpiresOn-hint`} className="mt-1 text-caption text-ink-faint">
-              The client can pick until the end of this day (UTC).
-            </p>
-            {fieldError('proofExpiresOn')}
-          </div>
-          <div>
-            <label className="label" htmlFor={`${ids}-passcode`}>
-              Passcode (optional)
-            </label>
-            <input className="field" autoComplete="off" maxLength={64} {...input('passcode')} aria-describedby={describedBy('passcode', true)} />
-            <p id={`${ids}-passcode-hint`} className="mt-1 text-caption text-ink-faint">
-              Asked for when the viewing link is opened. Tell it to your client by another way than e-mail.
-            </p>
-            {fieldError('passcode')}
-          </div>
+          <Field {...fieldProps('proofExpiresOn')} label="Proofs close after" hint="The client can pick until the end of this day (UTC).">
+            <input className="field" type="date" {...input('proofExpiresOn', true)} />
+          </Field>
+          <Field {...fieldProps('passcode')} label="Passcode (optional)" hint="Asked for when the viewing link is opened. Tell it to your client by another way than e-mail.">
+            <input className="field" autoComplete="off" maxLength={64} {...input('passcode', true)} />
+          </Field>
         </div>
       </fieldset>
 
@@ -408,4 +341,26 @@ function safeMinorUnits(currency: string): number {
   } catch {
     return 2;
   }
+}
+
+/** One labelled field: its control, an optional hint and the error, tied together by ids for screen readers. */
+function Field({ id, label, hint, error, className, children }: { id: string; label: string; hint?: ReactNode; error?: string; className?: string; children: ReactNode }) {
+  return (
+    <div className={className}>
+      <label className="label" htmlFor={id}>
+        {label}
+      </label>
+      {children}
+      {hint ? (
+        <p id={`${id}-hint`} className="mt-1 text-caption text-ink-faint">
+          {hint}
+        </p>
+      ) : null}
+      {error ? (
+        <p id={`${id}-error`} className="mt-1 text-caption font-semibold text-ember">
+          {error}
+        </p>
+      ) : null}
+    </div>
+  );
 }

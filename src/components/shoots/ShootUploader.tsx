@@ -38,6 +38,24 @@ export interface UploaderSetup {
   restrictionStrings?: Record<string, unknown>;
 }
 
+/** The drop area's counted phrases for what it sends ("frame" / "frames", "final" / "finals"). */
+export function countedWords(one: string, many: string, processing: { one: string; many: string }): Record<string, unknown> {
+  const counted = (a: string, b: string) => ({ 0: a, 1: b });
+  return {
+    dropPasteFiles: `Drop ${many} here or %{browseFiles}`,
+    dashboardTitle: `${one[0]!.toUpperCase()}${one.slice(1)} uploader`,
+    xFilesSelected: counted(`%{smart_count} ${one} selected`, `%{smart_count} ${many} selected`),
+    uploadingXFiles: counted(`Sending %{smart_count} ${one}`, `Sending %{smart_count} ${many}`),
+    processingXFiles: counted(processing.one, processing.many),
+    filesUploadedOfTotal: counted(`%{complete} of %{smart_count} ${one} sent`, `%{complete} of %{smart_count} ${many} sent`),
+    uploadXFiles: counted(`Send %{smart_count} ${one}`, `Send %{smart_count} ${many}`),
+    uploadXNewFiles: counted(`Send +%{smart_count} ${one}`, `Send +%{smart_count} ${many}`),
+    xMoreFilesAdded: counted(`%{smart_count} more ${one} added`, `%{smart_count} more ${many} added`),
+    addMoreFiles: `Add more ${many}`,
+    dropHint: `Drop the ${many} here`,
+  };
+}
+
 export const frameUploaderSetup = (shootId: string): UploaderSetup => ({
   uppyId: `shoot-${shootId}`,
   signUrl: `/api/shoots/${shootId}/uploads/sign`,
@@ -298,18 +316,9 @@ function UppyDashboard({ uppy, limits, setup }: { uppy: Uppy<Meta, Body>; limits
   const locale = useMemo(
     () => ({
       strings: {
-        dropPasteFiles: 'Drop frames here or %{browseFiles}',
+        ...countedWords('frame', 'frames', { one: 'Adding %{smart_count} frame to the shoot', many: 'Adding %{smart_count} frames to the shoot' }),
         browseFiles: 'browse',
-        dashboardTitle: 'Frame uploader',
-        xFilesSelected: { 0: '%{smart_count} frame selected', 1: '%{smart_count} frames selected' },
-        uploadingXFiles: { 0: 'Sending %{smart_count} frame', 1: 'Sending %{smart_count} frames' },
-        processingXFiles: { 0: 'Adding %{smart_count} frame to the shoot', 1: 'Adding %{smart_count} frames to the shoot' },
-        filesUploadedOfTotal: { 0: '%{complete} of %{smart_count} frame sent', 1: '%{complete} of %{smart_count} frames sent' },
-        uploadXFiles: { 0: 'Send %{smart_count} frame', 1: 'Send %{smart_count} frames' },
-        uploadXNewFiles: { 0: 'Send +%{smart_count} frame', 1: 'Send +%{smart_count} frames' },
-        xMoreFilesAdded: { 0: '%{smart_count} more frame added', 1: '%{smart_count} more frames added' },
         addMore: 'Add more',
-        addMoreFiles: 'Add more frames',
         uploading: 'Sending',
         complete: 'All sent',
         uploadFailed: 'Some files did not upload',
@@ -325,7 +334,6 @@ function UppyDashboard({ uppy, limits, setup }: { uppy: Uppy<Meta, Body>; limits
         removeFile: 'Remove from the list',
         error: 'Problem',
         showErrorDetails: 'Why?',
-        dropHint: 'Drop the frames here',
         ...setup.strings,
       },
     }),
