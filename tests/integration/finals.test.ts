@@ -422,12 +422,43 @@ describe('finals: upload, match, hand off, download', () => {
     // The new link opens the finals.
     const fresh = await clientAgent(body.newLink.split('/g/')[1]);
     expect((await (await fresh.get(`/api/gallery/${id}/finals`)).json()).finals).toHaveLength(1);
+
+    // Nothing new yet: nothing to tell.
+    expect((await owner.postJson(`/api/shoots/${id}/finals/announce`, {})).status).toBe(409);
+    // The second final arrives after the hand-off: the client sees it at once, and the owner tells them in one e-mail.
+    const late = await sendFile(owner, `/api/shoots/${id}/finals/uploads/sign`, `/api/shoots/${id}/finals`, 'DSC_0002_final.jpg', await syntheticPortrait({ width: 600, height: 800, seed: 951 }));
+    expect(late.body.outcome).toBe('matched');
+    await finalSettled(late.body.id);
+    expect((await (await fresh.get(`/api/gallery/${id}/finals`)).json()).finals).toHaveLength(2);
+    expect((await (await owner.get(`/api/shoots/${id}/finals`)).json()).unannounced).toBe(1);
+    expect((await retoucher.postJson(`/api/shoots/${id}/finals/announce`, {})).status).toBe(403);
+    const told = await owner.postJson(`/api/shoots/${id}/finals/announce`, {});
+    expect(told.status).toBe(200);
+    expect(await told.json()).toEqual({ announced: 1, newLink: null });
+    const more = await waitForMail(made.client.email, /More of your photos/);
+    expect(more.text).toContain('One more finished photo has joined the others');
+    expect(more.text).toContain('2 in all');
+    expect(more.text).not.toContain('still being finished');
+    expect(more.text).toContain('same link as before');
+    expect((await (await owner.get(`/api/shoots/${id}/finals`)).json()).unannounced).toBe(0);
+    expect((await owner.postJson(`/api/shoots/${id}/finals/announce`, {})).status).toBe(409);
   });
 
-  it('archives the shoot (the gallery closes, 410) and deletes it after the title is typed, leaving no object under its prefix', async () => {
+  it('archives the shoot (the gallery closes, 410), brings it back to delivered, and deletes it after the title is typed, leaving no object under its prefix', async () => {
     expect((await owner.postJson(`/api/shoots/${shootId}/archive`, {})).status).toBe(200);
     expect((await client.get(`/api/gallery/${shootId}/finals`)).status).toBe(410);
     expect((await client.get(`/gallery/${shootId}`)).status).toBe(410);
+
+    // Brought back: the stage it left from, and the client's finals open again through the same session.
+    expect((await retoucher.postJson(`/api/shoots/${shootId}/restore`, {})).status).toBe(403);
+    const back = await owner.postJson(`/api/shoots/${shootId}/restore`, {});
+    expect(back.status).toBe(200);
+    expect(await back.json()).toEqual({ stage: 'delivered' });
+    expect((await db()('shoots').where({ id: shootId }).first()).archived_from).toBeNull();
+    expect((await client.get(`/api/gallery/${shootId}/finals`)).status).toBe(200);
+    expect((await owner.postJson(`/api/shoots/${shootId}/restore`, {})).status).toBe(409);
+    expect((await owner.postJson(`/api/shoots/${shootId}/archive`, {})).status).toBe(200);
+    expect((await db()('shoots').where({ id: shootId }).first()).archived_from).toBe('delivered');
 
     expect((await listKeys(prefix)).length).toBeGreaterThan(0);
     const wrong = await owner.fetch(`/api/shoots/${shootId}`, { method: 'DELETE', json: { title: 'Spring headshots' } });

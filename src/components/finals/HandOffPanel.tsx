@@ -1,5 +1,5 @@
 import { useState } from 'react';
-import { FinalsApiError, extendDownloads, handOff } from './api';
+import { FinalsApiError, announceFinals, extendDownloads, handOff } from './api';
 import type { FinalsDeskData } from './types';
 
 const day = (iso: string) => new Date(iso).toLocaleDateString('en-GB', { day: 'numeric', month: 'long', year: 'numeric', timeZone: 'UTC' });
@@ -13,6 +13,7 @@ export default function HandOffPanel({ data, onChanged, idSuffix = '' }: { data:
   const [link, setLink] = useState<string | null>(null);
   const [days, setDays] = useState(14);
   const [extended, setExtended] = useState('');
+  const [announced, setAnnounced] = useState('');
   const { counts } = data;
   const api = `/api/shoots/${data.shootId}/finals`;
 
@@ -31,6 +32,21 @@ export default function HandOffPanel({ data, onChanged, idSuffix = '' }: { data:
     } catch (err) {
       if (err instanceof FinalsApiError && err.needsConfirmation) setConfirm(err.message);
       else setError(err instanceof FinalsApiError ? err.message : 'That did not work. Please try again.');
+    } finally {
+      setBusy(false);
+    }
+  }
+
+  async function doAnnounce() {
+    setBusy(true);
+    setError('');
+    try {
+      const r = await announceFinals(data.shootId);
+      if (r.newLink) setLink(r.newLink);
+      setAnnounced(`${data.clientName} has been e-mailed about ${r.announced === 1 ? 'the new final' : `the ${r.announced} new finals`}.`);
+      onChanged();
+    } catch (err) {
+      setError(err instanceof FinalsApiError ? err.message : 'That did not work. Please try again.');
     } finally {
       setBusy(false);
     }
@@ -66,6 +82,16 @@ export default function HandOffPanel({ data, onChanged, idSuffix = '' }: { data:
         <p className={closed ? 'mt-1 font-semibold text-ember' : 'mt-1 text-ink-soft'} data-testid="download-until">
           {closed ? `Downloads closed on ${day(data.downloadUntil)}. The client sees a notice with your contact details.` : `${data.clientName} can download until ${day(data.downloadUntil)}.`}
         </p>
+        {announced ? <p className="notice-ok mt-3" role="status">{announced}</p> : null}
+        {data.can.handOff && data.unannounced > 0 && !closed ? (
+          <div className="notice-caution mt-3" data-testid="unannounced">
+            <p>
+              {data.unannounced === 1 ? 'One final became ready' : `${data.unannounced} finals became ready`} after {data.clientName} was last e-mailed.
+              They can already download {data.unannounced === 1 ? 'it' : 'them'}; an e-mail lets them know.
+            </p>
+            <button type="button" className="btn-accent mt-2" disabled={busy} onClick={doAnnounce}>Tell {data.clientName}</button>
+          </div>
+        ) : null}
         {data.can.handOff ? (
           <div className="mt-4">
             <label className="label" htmlFor={`extend-days${idSuffix}`}>Keep downloads open longer</label>

@@ -1,7 +1,7 @@
 import { useState } from 'react';
-import { FinalsApiError, archiveShoot, deleteShoot } from './api';
+import { FinalsApiError, archiveShoot, deleteShoot, restoreShoot } from './api';
 
-/** The end of a shoot: archive it (the gallery closes) or delete it for good after typing its title. */
+/** The end of a shoot: archive it (the gallery closes) and bring it back, or delete it for good after typing its title. */
 export default function ShootEnd({ shootId, title, stage }: { shootId: string; title: string; stage: string }) {
   const [askArchive, setAskArchive] = useState(false);
   const [deleting, setDeleting] = useState(false);
@@ -38,7 +38,15 @@ export default function ShootEnd({ shootId, title, stage }: { shootId: string; t
         ) : (
           <button type="button" className="btn-quiet mt-2 w-full" onClick={() => setAskArchive(true)}>Archive the shoot</button>
         )
-      ) : null}
+      ) : (
+        <>
+          <p className="mt-1 text-ink-soft">Bringing it back returns the shoot to the stage it was archived from and reopens the client’s gallery, if its link and dates still allow.</p>
+          <button type="button" className="btn-quiet mt-2 w-full" disabled={busy} onClick={() => run(async () => {
+            await restoreShoot(shootId);
+            window.location.assign(`${window.location.pathname}?done=restored`);
+          })}>Bring the shoot back</button>
+        </>
+      )}
       {deleting ? (
         <form className="mt-3 rounded-card border border-ember/30 bg-ember-light/50 p-3" onSubmit={(e) => {
           e.preventDefault();

@@ -45,4 +45,6 @@ export const handOff = (shootId: string, partial: boolean) =>
 export const extendDownloads = (shootId: string, days: number) =>
   call<{ downloadUntil: string }>(`/api/shoots/${shootId}/finals/extend`, { method: 'POST', json: { days } });
 export const archiveShoot = (shootId: string) => call<{ ok: true }>(`/api/shoots/${shootId}/archive`, { method: 'POST', json: {} });
+export const announceFinals = (shootId: string) => call<{ announced: number; newLink: string | null }>(`/api/shoots/${shootId}/finals/announce`, { method: 'POST', json: {} });
+export const restoreShoot = (shootId: string) => call<{ stage: string }>(`/api/shoots/${shootId}/restore`, { method: 'POST', json: {} });
 export const deleteShoot = (shootId: string, title: string) => call<{ ok: true; url: string }>(`/api/shoots/${shootId}`, { method: 'DELETE', json: { title } });

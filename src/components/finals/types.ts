@@ -87,6 +87,8 @@ export interface FinalsDeskData {
   /** Why uploading is closed, when it is. */
   uploadClosed: string | null;
   downloads: DownloadLogEntry[] | null;
+  /** Ready finals the client has not been e-mailed about (after a partial hand-off). */
+  unannounced: number;
 }
 
 /** One final as the client sees it after hand-off. */

@@ -11,6 +11,7 @@
 import type { Knex } from 'knex';
 import { GetObjectCommand } from '@aws-sdk/client-s3';
 import { db } from './db';
+import { captureOrder } from './frame-order';
 import { audit } from './audit';
 import { config } from './config';
 import { HttpError, conflict, notFound, badRequest } from './http';
@@ -80,7 +81,7 @@ function assertOwnFinalKey(shoot: { id: string; studio_id: string }, key: string
  */
 export async function frameNumbers(shootId: string, q: Db = db()): Promise<{ numbers: Map<string, number>; digits: number }> {
   const { rows } = await q.raw(
-    `SELECT id, row_number() OVER (ORDER BY taken_at ASC NULLS LAST, original_name ASC, id ASC)::int AS n
+    `SELECT id, row_number() OVER (ORDER BY ${captureOrder('f')})::int AS n
        FROM frames f
       WHERE shoot_id = ? AND state = 'ready'
         AND (hidden = false OR EXISTS (SELECT 1 FROM picks k WHERE k.frame_id = f.id))`,
@@ -320,13 +321,13 @@ const img = async (v: Row | undefined): Promise<Img | null> => (v ? { url: await
 /** Everything the Finals tab shows, for a member of the shoot's studio. */
 export async function finalsDesk(
   member: SessionMember,
-  shoot: ShootRef & { title: string; client_name: string; download_until: string | Date | null },
+  shoot: ShootRef & { title: string; client_name: string; download_until: string | Date | null; announced_finals: number },
 ): Promise<FinalsDeskData> {
   const [pickRows, finalRows, { numbers }] = await Promise.all([
     db()('picks as k').join('frames as f', 'f.id', 'k.frame_id')
       .leftJoin('frame_variants as t', (j) => j.on('t.frame_id', 'f.id').andOnVal('t.kind', 'thumb'))
       .where({ 'k.shoot_id': shoot.id, 'k.studio_id': shoot.studio_id })
-      .orderBy([{ column: 'f.taken_at', order: 'asc', nulls: 'last' }, { column: 'f.original_name', order: 'asc' }, { column: 'f.id', order: 'asc' }])
+      .orderByRaw(captureOrder('f'))
       .select('k.frame_id', 'k.note', 'f.original_name', 't.object_key as tk', 't.width as tw', 't.height as th'),
     db()('finals as fi').leftJoin('users as u', 'u.id', 'fi.uploaded_by')
       .where({ 'fi.shoot_id': shoot.id, 'fi.studio_id': shoot.studio_id }).whereNull('fi.superseded_at')
@@ -396,6 +397,7 @@ export async function finalsDesk(
     },
     uploadClosed: finalsClosedReason(shoot.stage),
     downloads: showLog ? await downloadLog(shoot.id, shoot.studio_id) : null,
+    unannounced: shoot.stage === 'delivered' ? Math.max(0, picks.filter((p) => p.final).length - shoot.announced_finals) : 0,
   };
 }
 
@@ -428,15 +430,7 @@ export async function handOff(member: SessionMember, shootId: string, partial: b
     const shoot = await trx('shoots').where({ id: found.id, studio_id: member.studioId }).forUpdate().first();
     if (shoot.stage === 'delivered') throw conflict(`These finals were handed off already; downloads are open until ${dateText(shoot.download_until)}.`);
     if (!['picks_in', 'retouching'].includes(shoot.stage)) throw conflict('Finals can be handed off once the client has sent picks and finals are uploaded.');
-    const { rows: [c] } = await trx.raw(
-      `SELECT count(*)::int AS picks,
-              count(fi.id)::int AS ready
-         FROM picks k
-         JOIN frames f ON f.id = k.frame_id
-         LEFT JOIN finals fi ON fi.frame_id = k.frame_id AND fi.superseded_at IS NULL AND fi.state = 'ready'
-        WHERE k.shoot_id = ? AND k.studio_id = ?`,
-      [shoot.id, member.studioId],
-    );
+    const c = await readyCounts(trx, shoot.id, member.studioId);
     if (c.ready === 0) throw conflict('No final is ready yet. Upload the finals and wait until they are processed, then hand off.');
     const missing = c.picks - c.ready;
     if (missing > 0 && !partial) {
@@ -446,49 +440,121 @@ export async function handOff(member: SessionMember, shootId: string, partial: b
       );
     }
     const studio = await trx('studios').where({ id: member.studioId }).first('name', 'brand_colour', 'download_expiry_days', 'contact_email');
-    const client = await trx('clients').where({ id: shoot.client_id, studio_id: member.studioId }).first('name', 'email');
-    // The client's link keeps working; only a withdrawn (or never made) link is replaced, since
-    // only its hash is kept and the e-mail must carry a link that opens.
-    let newLink: string | null = null;
-    if (!shoot.link_token_hash || shoot.link_revoked_at) {
-      const token = newToken();
-      newLink = viewingLinkUrl(token);
-      await trx('shoots').where({ id: shoot.id }).update({ link_token_hash: hashToken(token), link_revoked_at: null, link_sent_at: trx.fn.now() });
-      await trx('client_sessions').where({ shoot_id: shoot.id }).delete();
-    }
+    const newLink = await ensureClientLink(trx, shoot);
     const [updated] = await trx('shoots').where({ id: shoot.id }).update({
       stage: 'delivered',
+      announced_finals: c.ready,
       download_until: trx.raw('now() + make_interval(days => ?)', [studio.download_expiry_days]),
       updated_at: trx.fn.now(),
     }).returning('download_until');
-    const until = dateText(updated.download_until);
     const count = c.ready === 1 ? 'Your finished photo is' : `Your ${c.ready} finished photos are`;
-    const paragraphs = [
-      `Hello ${client.name},`,
-      `${count} ready from “${shoot.title}”. You can download each one at full size, or all of them at once as a ZIP file, along with crops sized for social posts (4:5, 1:1 and 9:16) and an 8×10 print crop.`,
-    ];
-    if (missing > 0) paragraphs.push(`${missing === 1 ? 'One more photo is' : `${missing} more photos are`} still being finished; they will appear in the same place.`);
-    paragraphs.push(`Downloads stay open until ${until}. Please save your photos before then.`);
-    if (!newLink) {
-      paragraphs.push(`Open them with the same link as before${shoot.link_sent_at ? `, from our e-mail of ${dateText(shoot.link_sent_at)}` : ''}. If you cannot find it, reply to this e-mail and we will send it again.`);
-    }
-    const body = renderMail({
-      studioName: studio.name,
-      brandColour: studio.brand_colour,
+    const id = await queueFinalsMail(trx, {
+      shoot: { ...shoot, download_until: updated.download_until },
+      studio,
+      newLink,
       heading: 'Your photos are ready',
-      paragraphs,
-      button: newLink ? { label: 'Open your photos', url: newLink } : undefined,
-      footer: newLink ? 'This link is personal: please do not forward it. Sent by Fillcard on behalf of the studio.' : undefined,
+      subject: `Your photos from ${studio.name} are ready`,
+      lead: `${count} ready from “${shoot.title}”. You can download each one at full size, or all of them at once as a ZIP file, along with crops sized for social posts (4:5, 1:1 and 9:16) and an 8×10 print crop.`,
+      missing,
     });
-    const id = await queueMail({ to: client.email, studioId: member.studioId, subject: `Your photos from ${studio.name} are ready`, ...body }, trx);
     await audit({
       studioId: member.studioId, actorKind: 'member', actorId: member.userId, action: 'shoot.handed_off', subjectType: 'shoot', subjectId: shoot.id,
-      details: { finals: c.ready, missing, partial: missing > 0, downloadUntil: new Date(updated.download_until).toISOString(), newLink: !!newLink, to: client.email },
+      details: { finals: c.ready, missing, partial: missing > 0, downloadUntil: new Date(updated.download_until).toISOString(), newLink: !!newLink },
     }, trx);
     return { result: { downloadUntil: new Date(updated.download_until).toISOString(), finals: c.ready as number, missing, newLink }, mailId: id };
   });
   await dispatchMail([mailId]);
   return result;
+}
+
+/**
+ * After a partial hand-off: tells the client in one e-mail that the finals which became ready since
+ * the last e-mail are there too. The owner chooses when, so a retoucher's afternoon of uploads is
+ * one message rather than many.
+ */
+export async function announceFinals(member: SessionMember, shootId: string): Promise<{ announced: number; newLink: string | null }> {
+  const found = await shootForMember(member, shootId);
+  const { result, mailId } = await db().transaction(async (trx) => {
+    const shoot = await trx('shoots').where({ id: found.id, studio_id: member.studioId }).forUpdate().first();
+    if (shoot.stage !== 'delivered') throw conflict('The client is told about finals when they are handed off; this shoot has not been.');
+    if (!shoot.download_until || new Date(shoot.download_until) < new Date()) throw conflict('Downloads have closed for this shoot. Extend them first, then tell the client.');
+    const c = await readyCounts(trx, shoot.id, member.studioId);
+    const fresh = c.ready - shoot.announced_finals;
+    if (fresh <= 0) throw conflict('The client has been told about every ready final already.');
+    const studio = await trx('studios').where({ id: member.studioId }).first('name', 'brand_colour', 'contact_email');
+    const newLink = await ensureClientLink(trx, shoot);
+    await trx('shoots').where({ id: shoot.id }).update({ announced_finals: c.ready, updated_at: trx.fn.now() });
+    const id = await queueFinalsMail(trx, {
+      shoot,
+      studio,
+      newLink,
+      heading: fresh === 1 ? 'One more photo is ready' : `${fresh} more photos are ready`,
+      subject: `More of your photos from ${studio.name} are ready`,
+      lead: `${fresh === 1 ? 'One more finished photo has' : `${fresh} more finished photos have`} joined the others from “${shoot.title}”: ${c.ready} in all, each with its crops for posting and print.`,
+      missing: c.picks - c.ready,
+    });
+    await audit({
+      studioId: member.studioId, actorKind: 'member', actorId: member.userId, action: 'shoot.finals_announced', subjectType: 'shoot', subjectId: shoot.id,
+      details: { fresh, ready: c.ready, missing: c.picks - c.ready, newLink: !!newLink },
+    }, trx);
+    return { result: { announced: fresh, newLink }, mailId: id };
+  });
+  await dispatchMail([mailId]);
+  return result;
+}
+
+/** Picks, and picks with a ready final, of a shoot. */
+async function readyCounts(trx: Knex.Transaction, shootId: string, studioId: string): Promise<{ picks: number; ready: number }> {
+  const { rows: [c] } = await trx.raw(
+    `SELECT count(*)::int AS picks,
+            count(fi.id)::int AS ready
+       FROM picks k
+       JOIN frames f ON f.id = k.frame_id
+       LEFT JOIN finals fi ON fi.frame_id = k.frame_id AND fi.superseded_at IS NULL AND fi.state = 'ready'
+      WHERE k.shoot_id = ? AND k.studio_id = ?`,
+    [shootId, studioId],
+  );
+  return c;
+}
+
+/**
+ * The client's link keeps working; only a withdrawn (or never made) link is replaced, since only its
+ * hash is kept and the e-mail must carry a link that opens. Returns the new link when one was made.
+ */
+async function ensureClientLink(trx: Knex.Transaction, shoot: { id: string; link_token_hash: string | null; link_revoked_at: Date | null }): Promise<string | null> {
+  if (shoot.link_token_hash && !shoot.link_revoked_at) return null;
+  const token = newToken();
+  await trx('shoots').where({ id: shoot.id }).update({ link_token_hash: hashToken(token), link_revoked_at: null, link_sent_at: trx.fn.now() });
+  await trx('client_sessions').where({ shoot_id: shoot.id }).delete();
+  return viewingLinkUrl(token);
+}
+
+/** The e-mail that tells the client finals are ready: at hand-off, and when later ones join them. */
+async function queueFinalsMail(trx: Knex.Transaction, m: {
+  shoot: { studio_id: string; client_id: string; download_until: Date | string; link_sent_at: Date | string | null };
+  studio: { name: string; brand_colour: string };
+  newLink: string | null;
+  heading: string;
+  subject: string;
+  lead: string;
+  missing: number;
+}): Promise<string> {
+  const client = await trx('clients').where({ id: m.shoot.client_id, studio_id: m.shoot.studio_id }).first('name', 'email');
+  const paragraphs = [`Hello ${client.name},`, m.lead];
+  if (m.missing > 0) paragraphs.push(`${m.missing === 1 ? 'One more photo is' : `${m.missing} more photos are`} still being finished; they will appear in the same place.`);
+  paragraphs.push(`Downloads stay open until ${dateText(m.shoot.download_until)}. Please save your photos before then.`);
+  if (!m.newLink) {
+    paragraphs.push(`Open them with the same link as before${m.shoot.link_sent_at ? `, from our e-mail of ${dateText(m.shoot.link_sent_at)}` : ''}. If you cannot find it, reply to this e-mail and we will send it again.`);
+  }
+  const body = renderMail({
+    studioName: m.studio.name,
+    brandColour: m.studio.brand_colour,
+    heading: m.heading,
+    paragraphs,
+    button: m.newLink ? { label: 'Open your photos', url: m.newLink } : undefined,
+    footer: m.newLink ? 'This link is personal: please do not forward it. Sent by Fillcard on behalf of the studio.' : undefined,
+  });
+  return queueMail({ to: client.email, studioId: m.shoot.studio_id, subject: m.subject, ...body }, trx);
 }
 
 /** Keeps downloads open `days` longer, counted from today when they have already closed. */
@@ -516,8 +582,25 @@ export async function archiveShoot(member: SessionMember, shootId: string): Prom
   await db().transaction(async (trx) => {
     const shoot = await trx('shoots').where({ id: found.id, studio_id: member.studioId }).forUpdate().first('stage');
     if (shoot.stage === 'archived') throw conflict('This shoot is archived already.');
-    await trx('shoots').where({ id: found.id }).update({ stage: 'archived', updated_at: trx.fn.now() });
+    await trx('shoots').where({ id: found.id }).update({ stage: 'archived', archived_from: shoot.stage, updated_at: trx.fn.now() });
     await audit({ studioId: member.studioId, actorKind: 'member', actorId: member.userId, action: 'shoot.archived', subjectType: 'shoot', subjectId: found.id, details: { fromStage: shoot.stage } }, trx);
+  });
+}
+
+/**
+ * Brings an archived shoot back to the stage it was archived from. The client's viewing link works
+ * again if it has not been withdrawn and its dates have not passed; the owner can extend or resend.
+ */
+export async function restoreShoot(member: SessionMember, shootId: string): Promise<{ stage: string }> {
+  const found = await shootForMember(member, shootId);
+  return db().transaction(async (trx) => {
+    const shoot = await trx('shoots').where({ id: found.id, studio_id: member.studioId }).forUpdate().first('stage', 'archived_from');
+    if (shoot.stage !== 'archived') throw conflict('This shoot is not archived.');
+    // Shoots archived without a record of their stage come back as drafts: nothing reopens for the client by surprise.
+    const stage = shoot.archived_from ?? 'draft';
+    await trx('shoots').where({ id: found.id }).update({ stage, archived_from: null, updated_at: trx.fn.now() });
+    await audit({ studioId: member.studioId, actorKind: 'member', actorId: member.userId, action: 'shoot.restored', subjectType: 'shoot', subjectId: found.id, details: { toStage: stage } }, trx);
+    return { stage };
   });
 }
 
@@ -578,7 +661,7 @@ async function readyFinals(shootId: string, studioId: string) {
   const [rows, { numbers, digits }] = await Promise.all([
     db()('finals as fi').join('frames as f', 'f.id', 'fi.frame_id')
       .where({ 'fi.shoot_id': shootId, 'fi.studio_id': studioId, 'fi.state': 'ready' }).whereNull('fi.superseded_at')
-      .orderBy([{ column: 'f.taken_at', order: 'asc', nulls: 'last' }, { column: 'f.original_name', order: 'asc' }, { column: 'f.id', order: 'asc' }])
+      .orderByRaw(captureOrder('f'))
       .select('fi.id', 'fi.frame_id', 'fi.created_at', 'f.original_name'),
     frameNumbers(shootId),
   ]);

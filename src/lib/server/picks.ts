@@ -8,6 +8,7 @@
  */
 import type { Knex } from 'knex';
 import { db } from './db';
+import { captureOrder } from './frame-order';
 import { audit } from './audit';
 import { conflict, notFound, HttpError } from './http';
 import { isUuid, shootForMember } from './permissions';
@@ -44,7 +45,7 @@ export async function galleryFrames(shootId: string, studioId: string): Promise<
     .join('frame_variants as t', (j) => j.on('t.frame_id', 'f.id').andOnVal('t.kind', 'thumb'))
     .join('frame_variants as p', (j) => j.on('p.frame_id', 'f.id').andOnVal('p.kind', 'proof'))
     .where({ 'f.shoot_id': shootId, 'f.studio_id': studioId })
-    .orderBy([{ column: 'f.taken_at', order: 'asc', nulls: 'last' }, { column: 'f.original_name', order: 'asc' }, { column: 'f.id', order: 'asc' }])
+    .orderByRaw(captureOrder('f'))
     .select('f.id', 'f.original_name', 't.id as ti', 't.object_key as tk', 't.width as tw', 't.height as th', 'p.id as pi', 'p.object_key as pk', 'p.width as pw', 'p.height as ph');
   return rows.map((r) => ({
     id: r.id,
@@ -57,7 +58,7 @@ export async function galleryFrames(shootId: string, studioId: string): Promise<
 async function visiblePicks(shootId: string, studioId: string, q: Db = db()): Promise<GalleryPick[]> {
   const rows: Row[] = await visibleFrames(q('picks as k').join('frames as f', 'f.id', 'k.frame_id'))
     .where({ 'k.shoot_id': shootId, 'k.studio_id': studioId })
-    .orderBy([{ column: 'f.taken_at', order: 'asc', nulls: 'last' }, { column: 'f.original_name', order: 'asc' }])
+    .orderByRaw(captureOrder('f'))
     .select('k.frame_id', 'k.note', 'k.updated_at');
   return rows.map((r) => ({ frameId: r.frame_id, note: r.note, updatedAt: new Date(r.updated_at).toISOString() }));
 }
@@ -202,7 +203,7 @@ export async function completePicks(trx: Knex.Transaction, shootId: string): Pro
   if (shoot.stage === 'proofing') await trx('shoots').where({ id: shootId }).update({ stage: 'picks_in', updated_at: trx.fn.now() });
   const picks: Row[] = await visibleFrames(trx('picks as k').join('frames as f', 'f.id', 'k.frame_id'))
     .where({ 'k.shoot_id': shootId })
-    .orderBy([{ column: 'f.taken_at', order: 'asc', nulls: 'last' }, { column: 'f.original_name', order: 'asc' }])
+    .orderByRaw(captureOrder('f'))
     .select('f.original_name', 'k.note');
   const owners: string[] = await trx('memberships as m').join('users as u', 'u.id', 'm.user_id')
     .where({ 'm.studio_id': shoot.studio_id, 'm.role': 'owner' }).pluck('u.email');
@@ -243,7 +244,7 @@ export async function picksForStudio(shootId: string, studioId: string): Promise
     .join('frames as f', 'f.id', 'k.frame_id')
     .leftJoin('frame_variants as t', (j) => j.on('t.frame_id', 'f.id').andOnVal('t.kind', 'thumb'))
     .where({ 'k.shoot_id': shootId, 'k.studio_id': studioId })
-    .orderBy([{ column: 'f.taken_at', order: 'asc', nulls: 'last' }, { column: 'f.original_name', order: 'asc' }])
+    .orderByRaw(captureOrder('f'))
     .select('k.frame_id', 'k.note', 'k.updated_at', 'f.original_name', 'f.hidden', 'f.state', 't.id as ti', 't.object_key as tk', 't.width as tw', 't.height as th');
   return rows.map((r) => ({
     frameId: r.frame_id,

@@ -1,4 +1,5 @@
 import { db } from './db';
+import { captureOrder } from './frame-order';
 import { audit } from './audit';
 import { hashPasscode } from './client-access';
 import { conflict, notFound } from './http';
@@ -44,14 +45,9 @@ export async function studioDefaults(studioId: string) {
   );
 }
 
-const FRAME_ORDER = [
-  { column: 'taken_at', order: 'asc', nulls: 'last' },
-  { column: 'original_name', order: 'asc' },
-] as const;
-
 /** A shoot's frames in capture order with their variant URLs. Clients see only ready, visible frames. */
 export async function listFrames(shootId: string, studioId: string, opts: { forClient?: boolean } = {}): Promise<FrameDto[]> {
-  const q = db()('frames').where({ shoot_id: shootId, studio_id: studioId }).orderBy(FRAME_ORDER as never);
+  const q = db()('frames').where({ shoot_id: shootId, studio_id: studioId }).orderByRaw(captureOrder());
   if (opts.forClient) q.where({ state: 'ready', hidden: false });
   const frames = await q.select('*');
   const variants = frames.length

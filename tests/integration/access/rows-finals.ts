@@ -52,12 +52,21 @@ export const rows: Record<string, Row[]> = {
     // The body is checked before the shoot is looked up, so B's owner learns nothing from it.
     { method: 'POST', path: (w) => `/api/shoots/${w.shootA}/finals/extend`, body: () => ({ days: 0 }), expect: memberApi(422, 403, 422) },
   ],
+  'api/shoots/[shootId]/finals/announce': [
+    // Shoot A has not been handed off: the owner gets through and is told so.
+    { method: 'POST', path: (w) => `/api/shoots/${w.shootA}/finals/announce`, body: () => ({}), expect: memberApi(409, 403, 404) },
+  ],
   'api/shoots/[shootId]/hand-off': [
     { method: 'POST', path: (w) => `/api/shoots/${w.shootA}/hand-off`, body: () => ({}), expect: memberApi(409, 403, 404) },
     { method: 'POST', path: (w) => `/api/shoots/${w.shootArchived}/hand-off`, body: () => ({ partial: true }), expect: memberApi(409, 403, 404) },
   ],
   'api/shoots/[shootId]/archive': [
     { method: 'POST', path: (w) => `/api/shoots/${w.shootArchived}/archive`, body: () => ({}), expect: memberApi(409, 403, 404) },
+  ],
+  'api/shoots/[shootId]/restore': [
+    // Shoot A is not archived: the owner gets through and is told so; nothing changes.
+    { method: 'POST', path: (w) => `/api/shoots/${w.shootA}/restore`, body: () => ({}), expect: memberApi(409, 403, 404) },
+    { method: 'POST', path: (w) => `/api/shoots/not-an-id/restore`, body: () => ({}), expect: memberApi(404, 403, 404) },
   ],
   'api/shoots/[shootId]/index': [
     // A title that is not the shoot's: the owner passes every check and is asked to type it exactly.
