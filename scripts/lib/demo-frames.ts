@@ -71,6 +71,8 @@ export async function seedDemoFrames(knex: Knex, studioId: string): Promise<void
           .returning('id');
         await processFinal(row.id, true);
       }
+      // Handed off with all three: the client has been told about every final.
+      await knex('shoots').where({ id: shoot.id }).update({ announced_finals: 3 });
     }
     console.log(`[fillcard] demo: ${n} frames for “${shoot.title}”`);
   }

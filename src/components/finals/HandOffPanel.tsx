@@ -113,7 +113,7 @@ export default function HandOffPanel({ data, onChanged, idSuffix = '' }: { data:
     return (
       <section className="card p-5" data-testid="handoff">
         <h2 className="text-lead">Archived</h2>
-        <p className="text-ink-soft">The client’s gallery is closed. The studio keeps the shoot and its files until it is deleted.</p>
+        <p className="text-ink-soft">The client’s gallery is closed. The studio keeps the shoot and its files until it is deleted; {data.can.manage ? 'bring it back from “Bring back or delete”.' : 'an owner can bring it back.'}</p>
         {zipLinks}
       </section>
     );

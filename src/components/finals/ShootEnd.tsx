@@ -22,7 +22,7 @@ export default function ShootEnd({ shootId, title, stage }: { shootId: string; t
 
   return (
     <section className="card p-5" aria-labelledby="end-heading" data-testid="shoot-end">
-      <h2 id="end-heading" className="text-lead">Archive or delete</h2>
+      <h2 id="end-heading" className="text-lead">{stage === 'archived' ? 'Bring back or delete' : 'Archive or delete'}</h2>
       {stage !== 'archived' ? (
         askArchive ? (
           <div className="mt-2 rounded-card bg-paper-deep p-3">
