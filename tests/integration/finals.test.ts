@@ -8,7 +8,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { execFile } from 'node:child_process';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { mkdtempSync, rmSync, statSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { promisify } from 'node:util';
@@ -335,13 +335,18 @@ describe('finals: upload, match, hand off, download', () => {
     expect(all.status).toBe(200);
     expect(all.headers.get('content-type')).toBe('application/zip');
     expect(parseDisposition(all.headers.get('content-disposition')).utf8).toBe(`${base}_finals.zip`);
-    const zipped = await unzipCheck(await saveBody(all, 'all.zip'));
+    const allFile = await saveBody(all, 'all.zip');
+    // The announced length is the archive's true length, so the browser can show progress.
+    expect(Number(all.headers.get('content-length'))).toBe(statSync(allFile).size);
+    const zipped = await unzipCheck(allFile);
     expect(zipped.ok).toBe(true);
     expect(zipped.names).toEqual([`${base}_01.jpg`, `${base}_02.jpg`, `${base}_03.jpg`]);
 
     const crops = await client.get(`/api/gallery/${shootId}/finals/zip?set=crops`);
     expect(parseDisposition(crops.headers.get('content-disposition')).utf8).toBe(`${base}_crops.zip`);
-    const cz = await unzipCheck(await saveBody(crops, 'crops.zip'));
+    const cropsFile = await saveBody(crops, 'crops.zip');
+    expect(Number(crops.headers.get('content-length'))).toBe(statSync(cropsFile).size);
+    const cz = await unzipCheck(cropsFile);
     expect(cz.ok).toBe(true);
     expect(cz.names).toEqual([1, 2, 3].flatMap((n) => ['4x5', '1x1', '9x16', '8x10-print'].map((k) => `${base}_0${n}_${k}.jpg`)));
 
@@ -363,6 +368,20 @@ describe('finals: upload, match, hand off, download', () => {
     expect(log).toHaveLength(6);
     expect(log[log.length - 1]).toMatchObject({ whoKind: 'member', what: 'Original of HLP_2042.jpg' });
     expect(log.some((e: { who: string; what: string }) => e.who === clientName && e.what === 'All finals (ZIP)')).toBe(true);
+  });
+
+  it('fails a ZIP whose stored object is not the size on record, rather than ending it short', async () => {
+    const [final] = await db()('finals').where({ shoot_id: shootId, state: 'ready' }).whereNull('superseded_at').orderBy('created_at').limit(1);
+    const where = { final_id: final.id, kind: 'full' };
+    const { bytes } = await db()('final_variants').where(where).first('bytes');
+    await db()('final_variants').where(where).update({ bytes: bytes + 1 });
+    try {
+      const res = await owner.get(`/api/shoots/${shootId}/finals/zip`);
+      expect(res.status).toBe(200);
+      await expect(saveBody(res, 'short.zip')).rejects.toThrow();
+    } finally {
+      await db()('final_variants').where(where).update({ bytes });
+    }
   });
 
   it('closes downloads after the date (410) with the studio’s contact, and reopens them when the owner extends it', async () => {

@@ -745,7 +745,7 @@ export async function zipEntries(shoot: { id: string; studio_id: string; title: 
     const kinds: FinalKind[] = set === 'finals' ? ['full'] : [...CROP_KINDS];
     for (const k of kinds) {
       const v = f.variants.get(k);
-      if (v) entries.push({ name: finalFileName(base, f.number, f.digits, k), key: v.object_key, date: f.createdAt });
+      if (v) entries.push({ name: finalFileName(base, f.number, f.digits, k), key: v.object_key, size: Number(v.bytes), date: f.createdAt });
     }
   }
   return { entries, fileName: zipFileName(base, set) };
