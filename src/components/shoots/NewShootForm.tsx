@@ -263,16 +263,9 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
             <input className="field" inputMode="numeric" {...input('allowance', true)} />
           </Field>
           <Field {...fieldProps('extraPrice')} label="Price per extra retouch" hint={digits === 0 ? `In whole ${currency}, e.g. 3000.` : `In ${currency}, e.g. 25${digits === 2 ? '.00' : '.' + '0'.repeat(digits)}.`}>
-            <div className="flex">
-              <input
-                className="field rounded-r-none"
-                inputMode="decimal"
-                {...input('extraPrice', true)}
-              />
-              <span className="inline-flex items-center rounded-r-card border border-l-0 border-paper-edge bg-paper-deep px-3 text-ink-soft" aria-hidden="true">
-                {currency}
-              </span>
-            </div>
+            <WithUnit unit={currency}>
+              <input className="field rounded-r-none" inputMode="decimal" {...input('extraPrice', true)} />
+            </WithUnit>
           </Field>
           <Field {...fieldProps('currency')} label="Currency">
             <select className="field" {...input('currency')}>
@@ -285,13 +278,10 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
           </Field>
         </div>
         <div className="mt-4 grid gap-4 sm:grid-cols-3">
-          <Field {...fieldProps('taxRate')} label="Tax rate" hint="0 when you charge no tax.">
-            <div className="flex">
+          <Field {...fieldProps('taxRate')} label="Tax rate" hint="In percent, e.g. 20; 0 when you charge no tax.">
+            <WithUnit unit="%">
               <input className="field rounded-r-none" inputMode="decimal" {...input('taxRate', true)} />
-              <span className="inline-flex items-center rounded-r-card border border-l-0 border-paper-edge bg-paper-deep px-3 text-ink-soft" aria-hidden="true">
-                %
-              </span>
-            </div>
+            </WithUnit>
           </Field>
           <div className="sm:col-span-2">
             <span className="label" id={`${ids}-taxMode-label`}>
@@ -361,6 +351,18 @@ function Field({ id, label, hint, error, className, children }: { id: string; la
           {error}
         </p>
       ) : null}
+    </div>
+  );
+}
+
+/** A field with its unit (currency, %) shown after it; screen readers get the unit from the field's hint. */
+function WithUnit({ unit, children }: { unit: string; children: ReactNode }) {
+  return (
+    <div className="flex">
+      {children}
+      <span className="inline-flex items-center rounded-r-card border border-l-0 border-paper-edge bg-paper-deep px-3 text-ink-soft" aria-hidden="true">
+        {unit}
+      </span>
     </div>
   );
 }
