@@ -25,7 +25,7 @@ import { newToken, hashToken } from './tokens';
 import { viewingLinkUrl, type SessionClient } from './client-access';
 import { ImageRejected, sniffImageType, checkNameMatchesType } from './images';
 import { matchFinalName, type PickName } from '../finals-matching';
-import { downloadBase, finalFileName, zipFileName, downloadLog, type ZipEntry } from './downloads';
+import { downloadBase, finalFileName, zipFileName, downloadLog, recordDownload, redirectToDownload, requester, zipResponse, type DownloadActor, type ZipEntry } from './downloads';
 import { can } from './permissions';
 import type { SessionMember } from './auth';
 import {
@@ -717,6 +717,38 @@ export function parseKind(value: string | null): FinalKind {
   const kind = (value ?? 'full') as FinalKind;
   if (kind !== 'full' && !(CROP_KINDS as readonly string[]).includes(kind)) throw badRequest('Ask for full, crop_4x5, crop_1x1, crop_9x16 or print_8x10.');
   return kind;
+}
+
+/**
+ * Serves one final (`?kind=full`) or one of its crops to a caller who may read the shoot: logged
+ * first, then a redirect to a five-minute link that saves it as "Client_Shoot_07.jpg".
+ */
+export async function finalDownloadResponse(
+  ctx: { request: Request; clientAddress?: string; url: URL; params: Record<string, string | undefined> },
+  shoot: { id: string; studio_id: string; title: string; client_id: string },
+  actor: DownloadActor,
+): Promise<Response> {
+  const kind = parseKind(ctx.url.searchParams.get('kind'));
+  const finalId = ctx.params.finalId ?? '';
+  const file = await finalDownload(shoot, finalId, kind);
+  await recordDownload({
+    studioId: shoot.studio_id, shootId: shoot.id, finalId, frameId: file.frameId, kind,
+    what: kind === 'full' ? 'final' : 'crop', ...requester(ctx, actor),
+  });
+  return redirectToDownload(file.key, file.fileName);
+}
+
+/** "Download all": every ready final (or, with `?set=crops`, every ratio crop) as one ZIP streamed from storage, logged. */
+export async function zipDownloadResponse(
+  ctx: { request: Request; clientAddress?: string; url: URL },
+  shoot: { id: string; studio_id: string; title: string; client_id: string },
+  actor: DownloadActor,
+): Promise<Response> {
+  const set = ctx.url.searchParams.get('set') === 'crops' ? 'crops' : 'finals';
+  const { entries, fileName } = await zipEntries(shoot, set);
+  if (!entries.length) throw conflict('There is no ready final to download yet.');
+  await recordDownload({ studioId: shoot.studio_id, shootId: shoot.id, what: set === 'crops' ? 'crops_zip' : 'finals_zip', ...requester(ctx, actor) });
+  return zipResponse(entries, fileName, ctx.request.signal);
 }
 
 /** One ready final's object and download name, for a shoot the caller may read. */
