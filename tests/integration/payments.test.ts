@@ -425,10 +425,15 @@ describe('webhooks', () => {
     await outboxSettled(paid.clientEmail);
     const receipts = (await mailsTo(paid.clientEmail)).filter((m) => /^Receipt/.test(m.subject));
     expect(receipts).toHaveLength(1);
-    // The studio's owner hears of it too, once.
-    await waitForMail(paid.studio.owner.email, /^Paid:/);
+    // The studio's owner hears of it once: one e-mail with the payment and the pick list together.
+    const notice = await waitForMail(paid.studio.owner.email, /^Paid:/);
     await outboxSettled(paid.studio.owner.email);
-    expect((await mailsTo(paid.studio.owner.email)).filter((m) => /^Paid:/.test(m.subject))).toHaveLength(1);
+    const { title } = await shootRow(paid.shootId);
+    const toOwner = (await mailsTo(paid.studio.owner.email)).filter((m) => m.subject.includes(`“${title}”`));
+    expect(toOwner.map((m) => m.subject)).toEqual([notice.subject]);
+    expect(notice.subject).toMatch(/\(\d+ picks\)$/);
+    expect(notice.text).toContain('The picks are locked and the shoot has moved to retouching.');
+    expect(notice.text).toMatch(/^1\. /m);
   });
 
   it('an expired event arriving after completed leaves the order paid', async () => {

@@ -274,9 +274,9 @@ export async function settleSession(
         updated_at: trx.fn.now() as unknown as Date,
       })
       .returning('*');
-    // The paid picks are final: the studio gets the pick list, the picks stay locked, and the
-    // shoot moves on to retouching (never backwards).
-    opts.mail.push(...(await completePicks(trx, shoot.id)));
+    // The paid picks are final: the studio gets the pick list with the payment, the picks stay
+    // locked, and the shoot moves on to retouching (never backwards).
+    opts.mail.push(...(await completePicks(trx, shoot.id, { total: formatMoney(paid.total_minor, paid.currency.trim()), lines: receiptLines(paid) })));
     await trx('shoots')
       .where({ id: shoot.id })
       .update({
@@ -746,6 +746,7 @@ async function mailContext(trx: Knex.Transaction, order: OrderRow) {
   return shoot as { id: string; title: string; client_name: string; client_email: string; studio_name: string; brand_colour: string; contact_email: string | null };
 }
 
+/** The client's receipt for a paid order. */
 async function queuePaidMail(trx: Knex.Transaction, order: OrderRow): Promise<string[]> {
   const s = await mailContext(trx, order);
   const total = formatMoney(order.total_minor, order.currency.trim());
@@ -765,24 +766,7 @@ async function queuePaidMail(trx: Knex.Transaction, order: OrderRow): Promise<st
     });
     ids.push(await queueMail({ to, studioId: order.studio_id, subject: `Receipt: ${total} for ${retouches(order.extras)} — ${s.studio_name}`, ...receipt }, trx));
   }
-  const owners = await trx('memberships as m')
-    .join('users as u', 'u.id', 'm.user_id')
-    .where({ 'm.studio_id': order.studio_id, 'm.role': 'owner' })
-    .pluck('u.email');
-  const notice = renderMail({
-    studioName: s.studio_name,
-    brandColour: s.brand_colour,
-    heading: 'Extra retouches paid',
-    paragraphs: [
-      `${s.client_name} paid ${total} for ${retouches(order.extras)} on “${s.title}”. The picks are locked and the shoot has moved to retouching.`,
-      receiptLines(order).join('\n'),
-      'Fillcard works out the figures; your local tax rules decide how they must appear on an invoice.',
-    ],
-    button: { label: 'Open the shoot', url: `${config().PUBLIC_ORIGIN}/desk/shoots/${s.id}/client` },
-  });
-  for (const owner of owners) {
-    ids.push(await queueMail({ to: owner, studioId: order.studio_id, subject: `Paid: ${s.client_name} — ${total} for “${s.title}”`, ...notice }, trx));
-  }
+  // The studio hears of the payment in the picks e-mail that goes out with it.
   return ids;
 }
 

@@ -192,10 +192,18 @@ export async function submitPicks(client: SessionClient): Promise<SubmitResult> 
 
 /**
  * The picks are final (sent without extras, or the extras are paid): the shoot moves to
- * `picks_in` and the studio's owners get the list. Call inside the transaction that makes them
- * final; returns outbox ids to hand to `dispatchMail` after commit.
+ * `picks_in` and the studio's owners get the list, with the payment in the same e-mail when the
+ * extras were paid. Call inside the transaction that makes them final; returns outbox ids to hand
+ * to `dispatchMail` after commit.
  */
-export async function completePicks(trx: Knex.Transaction, shootId: string): Promise<string[]> {
+export interface PicksPayment {
+  /** The amount paid, formatted for its currency. */
+  total: string;
+  /** The receipt's lines (extras × price, tax, total). */
+  lines: string[];
+}
+
+export async function completePicks(trx: Knex.Transaction, shootId: string, payment?: PicksPayment): Promise<string[]> {
   const shoot = await trx('shoots as s').join('clients as c', 'c.id', 's.client_id').join('studios as st', 'st.id', 's.studio_id')
     .where('s.id', shootId)
     .first('s.id', 's.studio_id', 's.title', 's.allowance', 's.stage', 'c.name as client_name', 'st.name as studio_name', 'st.brand_colour');
@@ -208,20 +216,33 @@ export async function completePicks(trx: Knex.Transaction, shootId: string): Pro
   const owners: string[] = await trx('memberships as m').join('users as u', 'u.id', 'm.user_id')
     .where({ 'm.studio_id': shoot.studio_id, 'm.role': 'owner' }).pluck('u.email');
   const extra = Math.max(0, picks.length - shoot.allowance);
+  const sent = `${picks.length} ${picks.length === 1 ? 'pick' : 'picks'}`;
+  const paragraphs = [
+    `${shoot.client_name} has chosen ${picks.length} ${picks.length === 1 ? 'frame' : 'frames'} from “${shoot.title}”. The package includes ${shoot.allowance}` +
+      (extra ? `, so ${extra} ${extra === 1 ? 'is an extra retouch' : 'are extra retouches'}${payment ? ', paid' : ''}.` : '.'),
+  ];
+  if (payment) {
+    paragraphs.push(
+      `${shoot.client_name} paid ${payment.total}. The picks are locked and the shoot has moved to retouching.`,
+      payment.lines.join('\n'),
+      'Fillcard works out the figures; your local tax rules decide how they must appear on an invoice.',
+    );
+  }
+  paragraphs.push(picks.map((p, i) => `${i + 1}. ${p.original_name}${p.note ? `\n    Note: ${p.note}` : ''}`).join('\n'));
   const body = renderMail({
     studioName: shoot.studio_name,
     brandColour: shoot.brand_colour,
-    heading: `${shoot.client_name} sent ${picks.length} ${picks.length === 1 ? 'pick' : 'picks'}`,
-    paragraphs: [
-      `${shoot.client_name} has chosen ${picks.length} ${picks.length === 1 ? 'frame' : 'frames'} from “${shoot.title}”. The package includes ${shoot.allowance}` +
-        (extra ? `, so ${extra} ${extra === 1 ? 'is an extra retouch' : 'are extra retouches'} (paid).` : '.'),
-      picks.map((p, i) => `${i + 1}. ${p.original_name}${p.note ? `\n    Note: ${p.note}` : ''}`).join('\n'),
-    ],
+    heading: payment ? `${shoot.client_name} sent ${sent} and paid for the extras` : `${shoot.client_name} sent ${sent}`,
+    paragraphs,
     button: { label: 'Open the picks', url: `${config().PUBLIC_ORIGIN}/desk/shoots/${shootId}/client` },
   });
+  // One e-mail per event: a paid submission is announced once, with the money and the list together.
+  const subject = payment
+    ? `Paid: ${shoot.client_name} — ${payment.total} for “${shoot.title}” (${sent})`
+    : `Picks in: “${shoot.title}” (${picks.length})`;
   const ids: string[] = [];
   for (const to of owners) {
-    ids.push(await queueMail({ to, studioId: shoot.studio_id, subject: `Picks in: “${shoot.title}” (${picks.length})`, ...body }, trx));
+    ids.push(await queueMail({ to, studioId: shoot.studio_id, subject, ...body }, trx));
   }
   return ids;
 }
