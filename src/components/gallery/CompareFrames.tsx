@@ -2,7 +2,7 @@ import { useEffect, useId, useRef } from 'react';
 import { useModal } from './use-modal';
 import { PickMark } from './icons';
 import type { GalleryFrame, GalleryPick } from '../../lib/schemas/picks';
-import { VIEWER_DIALOG_CLASS, ViewerCloseButton } from './viewer-chrome';
+import { VIEWER_DIALOG_CLASS, ViewerHeader } from './viewer-chrome';
 
 interface Props {
   pair: [GalleryFrame, GalleryFrame];
@@ -21,17 +21,9 @@ export default function CompareFrames({ pair, picks, canPick, onKeep, onClose }:
   useEffect(() => firstAction.current?.focus(), []);
 
   return (
-    <dialog
-      ref={ref}
-      aria-labelledby={titleId}
-      onKeyDown={trapTab}
-      className={VIEWER_DIALOG_CLASS}
-    >
+    <dialog ref={ref} aria-labelledby={titleId} onKeyDown={trapTab} className={VIEWER_DIALOG_CLASS}>
       <div className="flex h-full flex-col">
-        <header className="flex items-center gap-3 px-3 py-2 sm:px-4">
-          <h2 id={titleId} className="min-w-0 flex-1 font-sans text-body font-semibold text-paper">Compare two frames</h2>
-          <ViewerCloseButton label="Close the comparison" onClick={onClose} />
-        </header>
+        <ViewerHeader titleId={titleId} title={<span className="font-semibold">Compare two frames</span>} closeLabel="Close the comparison" onClose={onClose} />
         <div className="grid min-h-0 flex-1 grid-rows-2 gap-2 px-2 pb-2 sm:grid-cols-2 sm:grid-rows-1 sm:gap-4 sm:px-4 sm:pb-4">
           {pair.map((frame, i) => {
             const other = pair[1 - i];

@@ -3,7 +3,7 @@ import { useModal } from './use-modal';
 import { frameSteps } from '../ui/frame-steps';
 import { Chevron, PickMark } from './icons';
 import { MAX_NOTE, type GalleryFrame, type GalleryPick } from '../../lib/schemas/picks';
-import { VIEWER_DIALOG_CLASS, ViewerCloseButton } from './viewer-chrome';
+import { VIEWER_DIALOG_CLASS, ViewerHeader } from './viewer-chrome';
 
 interface Props {
   frames: GalleryFrame[];
@@ -69,21 +69,18 @@ export default function ProofViewer({ frames, index, picks, canPick, saving, onI
   };
 
   return (
-    <dialog
-      ref={ref}
-      aria-labelledby={titleId}
-      onKeyDown={onKeyDown}
-      className={VIEWER_DIALOG_CLASS}
-    >
+    <dialog ref={ref} aria-labelledby={titleId} onKeyDown={onKeyDown} className={VIEWER_DIALOG_CLASS}>
       <div className="flex h-full flex-col lg:flex-row">
         <div className="flex min-h-0 flex-1 flex-col">
-          <header className="flex items-center gap-3 px-3 py-2 sm:px-4">
-            <h2 id={titleId} className="min-w-0 flex-1 font-sans text-body text-paper">
+          <ViewerHeader
+            titleId={titleId}
+            title={<>
               <span className="font-semibold tabular-nums" data-testid="viewer-counter">{index + 1} of {frames.length}</span>
               <span className="ml-2 truncate text-caption text-paper/70">{frame.name}</span>
-            </h2>
-            <ViewerCloseButton label="Close the viewer" onClick={() => onClose(frame.id)} />
-          </header>
+            </>}
+            closeLabel="Close the viewer"
+            onClose={() => onClose(frame.id)}
+          />
           <div
             className="relative min-h-0 flex-1 select-none"
             style={{ touchAction: 'pan-y pinch-zoom' }}

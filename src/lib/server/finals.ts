@@ -19,7 +19,7 @@ import { isUuid, shootForMember } from './permissions';
 import { keys, headObject, deleteObject, deletePrefix, s3 } from './storage';
 import { cleanFileName, UPLOAD_LIMITS } from './uploads';
 import { enqueue, QUEUES } from './jobs';
-import { variantUrl } from './media';
+import { joinVariant, variantColumns, variantImage, variantUrl } from './media';
 import { queueMail, dispatchMail, renderMail } from './mail';
 import { newToken, hashToken } from './tokens';
 import { viewingLinkUrl, type SessionClient } from './client-access';
@@ -324,11 +324,10 @@ export async function finalsDesk(
   shoot: ShootRef & { title: string; client_name: string; download_until: string | Date | null; announced_finals: number },
 ): Promise<FinalsDeskData> {
   const [pickRows, finalRows, { numbers }] = await Promise.all([
-    db()('picks as k').join('frames as f', 'f.id', 'k.frame_id')
-      .leftJoin('frame_variants as t', (j) => j.on('t.frame_id', 'f.id').andOnVal('t.kind', 'thumb'))
+    joinVariant(db()('picks as k').join('frames as f', 'f.id', 'k.frame_id'), 't', 'thumb', 'leftJoin')
       .where({ 'k.shoot_id': shoot.id, 'k.studio_id': shoot.studio_id })
       .orderByRaw(captureOrder('f'))
-      .select('k.frame_id', 'k.note', 'f.original_name', 't.object_key as tk', 't.width as tw', 't.height as th'),
+      .select('k.frame_id', 'k.note', 'f.original_name', ...variantColumns('t')),
     db()('finals as fi').leftJoin('users as u', 'u.id', 'fi.uploaded_by')
       .where({ 'fi.shoot_id': shoot.id, 'fi.studio_id': shoot.studio_id }).whereNull('fi.superseded_at')
       .orderBy('fi.created_at', 'asc')
@@ -357,7 +356,7 @@ export async function finalsDesk(
       number: numbers.get(p.frame_id) ?? i + 1,
       name: p.original_name,
       note: p.note,
-      thumb: p.tk ? { url: await variantUrl(p.tk), width: p.tw, height: p.th } : null,
+      thumb: variantImage(p, 't'),
       state,
       final: current ? await toDesk(current) : null,
       incoming: incoming ? await toDesk(incoming) : null,

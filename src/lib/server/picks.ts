@@ -14,7 +14,7 @@ import { conflict, notFound, HttpError } from './http';
 import { isUuid, shootForMember } from './permissions';
 import { limitRate } from './rate-limit';
 import { queueMail, dispatchMail, renderMail } from './mail';
-import { mediaPath } from './media';
+import { joinVariant, variantColumns, variantImage } from './media';
 import { newToken, hashToken } from './tokens';
 import { viewingLinkUrl, type SessionClient } from './client-access';
 import { config } from './config';
@@ -41,18 +41,11 @@ const visibleFrames = (q: Knex.QueryBuilder, alias = 'f') =>
  * the social crops never reach a client; object keys never leave the server.
  */
 export async function galleryFrames(shootId: string, studioId: string): Promise<GalleryFrame[]> {
-  const rows: Row[] = await visibleFrames(db()('frames as f'))
-    .join('frame_variants as t', (j) => j.on('t.frame_id', 'f.id').andOnVal('t.kind', 'thumb'))
-    .join('frame_variants as p', (j) => j.on('p.frame_id', 'f.id').andOnVal('p.kind', 'proof'))
+  const rows: Row[] = await joinVariant(joinVariant(visibleFrames(db()('frames as f')), 't', 'thumb'), 'p', 'proof')
     .where({ 'f.shoot_id': shootId, 'f.studio_id': studioId })
     .orderByRaw(captureOrder('f'))
-    .select('f.id', 'f.original_name', 't.id as ti', 't.object_key as tk', 't.width as tw', 't.height as th', 'p.id as pi', 'p.object_key as pk', 'p.width as pw', 'p.height as ph');
-  return rows.map((r) => ({
-    id: r.id,
-    name: r.original_name,
-    thumb: { url: mediaPath(r.ti, r.tk), width: r.tw, height: r.th },
-    proof: { url: mediaPath(r.pi, r.pk), width: r.pw, height: r.ph },
-  }));
+    .select('f.id', 'f.original_name', ...variantColumns('t'), ...variantColumns('p'));
+  return rows.map((r) => ({ id: r.id, name: r.original_name, thumb: variantImage(r, 't')!, proof: variantImage(r, 'p')! }));
 }
 
 async function visiblePicks(shootId: string, studioId: string, q: Db = db()): Promise<GalleryPick[]> {
@@ -261,18 +254,16 @@ export interface StudioPick {
 
 /** The client's picks with their notes and thumbnails, for the studio's Client & picks tab. */
 export async function picksForStudio(shootId: string, studioId: string): Promise<StudioPick[]> {
-  const rows = await db()('picks as k')
-    .join('frames as f', 'f.id', 'k.frame_id')
-    .leftJoin('frame_variants as t', (j) => j.on('t.frame_id', 'f.id').andOnVal('t.kind', 'thumb'))
+  const rows: Row[] = await joinVariant(db()('picks as k').join('frames as f', 'f.id', 'k.frame_id'), 't', 'thumb', 'leftJoin')
     .where({ 'k.shoot_id': shootId, 'k.studio_id': studioId })
     .orderByRaw(captureOrder('f'))
-    .select('k.frame_id', 'k.note', 'k.updated_at', 'f.original_name', 'f.hidden', 'f.state', 't.id as ti', 't.object_key as tk', 't.width as tw', 't.height as th');
+    .select('k.frame_id', 'k.note', 'k.updated_at', 'f.original_name', 'f.hidden', 'f.state', ...variantColumns('t'));
   return rows.map((r) => ({
     frameId: r.frame_id,
     name: r.original_name,
     note: r.note,
     hidden: r.hidden || r.state !== 'ready',
-    thumb: r.tk ? { url: mediaPath(r.ti, r.tk), width: r.tw, height: r.th } : null,
+    thumb: variantImage(r, 't'),
     updatedAt: new Date(r.updated_at).toISOString(),
   }));
 }
