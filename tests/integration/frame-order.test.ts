@@ -37,3 +37,32 @@ describe('frame order', () => {
     expect(byNumber).toEqual(expected);
   });
 });
+
+describe('gallery listing cache', () => {
+  it('moves the shoot’s frames version whenever a frame or variant changes, and the listing follows at once', async () => {
+    const studioId = (await makeStudio('Listing')).studioId;
+    const made = await makeShoot(studioId, { stage: 'proofing' });
+    const shootId = made.shoot.id;
+    const version = async () => String((await db()('shoots').where({ id: shootId }).first('frames_version')).frames_version);
+    const { galleryData } = await import('../../src/lib/server/picks');
+    const session = { shootId, studioId, clientId: made.client.id } as Parameters<typeof galleryData>[0];
+    const names = async () => (await galleryData(session)).frames.map((f) => f.name);
+
+    const v0 = await version();
+    const ids = [randomUUID(), randomUUID()];
+    await db()('frames').insert(ids.map((id, i) => ({ id, studio_id: studioId, shoot_id: shootId, object_key: `studios/${studioId}/shoots/${shootId}/originals/${id}.jpg`, original_name: `F_${i + 1}.jpg`, bytes: 1, state: 'ready' })));
+    const v1 = await version();
+    expect(v1).not.toBe(v0);
+    // Ready frames without their proof are not listed yet.
+    expect(await names()).toEqual([]);
+    await db()('frame_variants').insert(ids.flatMap((id, i) => (['thumb', 'proof'] as const).map((kind) => ({ studio_id: studioId, frame_id: id, kind, object_key: `studios/${studioId}/shoots/${shootId}/variants/${kind}${i}${'0'.repeat(58)}.jpg`, width: 10, height: 10, bytes: 1 }))));
+    expect(await version()).not.toBe(v1);
+    expect(await names()).toEqual(['F_1.jpg', 'F_2.jpg']);
+    // Served again unchanged, then changed by hiding a frame and by removing one.
+    expect(await names()).toEqual(['F_1.jpg', 'F_2.jpg']);
+    await db()('frames').where({ id: ids[0] }).update({ hidden: true });
+    expect(await names()).toEqual(['F_2.jpg']);
+    await db()('frames').where({ id: ids[1] }).delete();
+    expect(await names()).toEqual([]);
+  });
+});

@@ -48,6 +48,26 @@ export async function galleryFrames(shootId: string, studioId: string): Promise<
   return rows.map((r) => ({ id: r.id, name: r.original_name, thumb: variantImage(r, 't')!, proof: variantImage(r, 'p')! }));
 }
 
+/**
+ * Recent listings, by shoot, under the shoot's frames version (moved by the database whenever one of
+ * its frames or variants changes). A client's gallery is listed again and again while the frames
+ * stay the same; a changed version simply misses. Bounded: the oldest entry goes first.
+ */
+const LISTING_CACHE_SHOOTS = 50;
+const listingCache = new Map<string, { version: string; frames: GalleryFrame[] }>();
+
+async function cachedGalleryFrames(shootId: string, studioId: string, version: string): Promise<GalleryFrame[]> {
+  const key = `${studioId}/${shootId}`;
+  const hit = listingCache.get(key);
+  if (hit?.version === version) return hit.frames;
+  // Read after the version: the rows are at least as new as it, so storing them under it is safe.
+  const frames = await galleryFrames(shootId, studioId);
+  listingCache.delete(key);
+  listingCache.set(key, { version, frames });
+  if (listingCache.size > LISTING_CACHE_SHOOTS) listingCache.delete(listingCache.keys().next().value!);
+  return frames;
+}
+
 async function visiblePicks(shootId: string, studioId: string, q: Db = db()): Promise<GalleryPick[]> {
   const rows: Row[] = await visibleFrames(q('picks as k').join('frames as f', 'f.id', 'k.frame_id'))
     .where({ 'k.shoot_id': shootId, 'k.studio_id': studioId })
@@ -75,7 +95,7 @@ export async function galleryData(client: SessionClient): Promise<GalleryData> {
     .first('s.*', 'st.name as studio_name');
   if (!shoot) throw notFound('No such gallery.');
   const [frames, picks, paid] = await Promise.all([
-    galleryFrames(shoot.id, shoot.studio_id),
+    cachedGalleryFrames(shoot.id, shoot.studio_id, String(shoot.frames_version)),
     visiblePicks(shoot.id, shoot.studio_id),
     hasPaidOrder(shoot.id),
   ]);
