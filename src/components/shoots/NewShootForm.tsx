@@ -1,9 +1,10 @@
-import { useId, useState, type ReactNode } from 'react';
+import { useId, useState } from 'react';
 import { useForm, type FieldErrors, type Resolver } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { newShootSchema, type NewShootInput } from '../../lib/schemas/shoot';
-import { SUPPORTED_CURRENCIES, currencyName, minorUnits, parseMoney, toDecimalText } from '../../lib/currency';
+import { SUPPORTED_CURRENCIES, currencyName, parseMoney, toDecimalText } from '../../lib/currency';
 import { parsePercent, percentText } from './percent';
+import { CHOICE, Field, WithUnit, flattenErrors, safeMinorUnits } from './form-fields';
 
 export interface ClientChoice {
   id: string;
@@ -45,9 +46,6 @@ interface FormValues {
   proofExpiresOn: string;
   passcode: string;
 }
-
-const CHOICE =
-  'inline-flex min-h-[44px] cursor-pointer items-center gap-2 rounded-card border border-paper-edge bg-white px-3 py-2 has-[:checked]:border-clay has-[:checked]:bg-clay-light/30 has-[:focus-visible]:outline has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-clay';
 
 export const TAX_CAUTION = 'Fillcard computes tax from your rate; you stay responsible for local tax rules.';
 
@@ -110,17 +108,6 @@ const resolver: Resolver<FormValues> = async (values, context, options) => {
   if (Object.keys(errors).length) return { values: {}, errors: errors as FieldErrors<FormValues> };
   return { values, errors: {} };
 };
-
-function flattenErrors(errors: FieldErrors, prefix = ''): [string, string][] {
-  const out: [string, string][] = [];
-  for (const [key, value] of Object.entries(errors ?? {})) {
-    if (!value || typeof value !== 'object') continue;
-    const path = prefix ? `${prefix}.${key}` : key;
-    if (typeof (value as { message?: unknown }).message === 'string') out.push([path, (value as { message: string }).message]);
-    else out.push(...flattenErrors(value as FieldErrors, path));
-  }
-  return out;
-}
 
 export default function NewShootForm({ clients, defaults, clientId }: Props) {
   const ids = useId();
@@ -322,47 +309,5 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
         </button>
       </div>
     </form>
-  );
-}
-
-function safeMinorUnits(currency: string): number {
-  try {
-    return minorUnits(currency);
-  } catch {
-    return 2;
-  }
-}
-
-/** One labelled field: its control, an optional hint and the error, tied together by ids for screen readers. */
-function Field({ id, label, hint, error, className, children }: { id: string; label: string; hint?: ReactNode; error?: string; className?: string; children: ReactNode }) {
-  return (
-    <div className={className}>
-      <label className="label" htmlFor={id}>
-        {label}
-      </label>
-      {children}
-      {hint ? (
-        <p id={`${id}-hint`} className="mt-1 text-caption text-ink-faint">
-          {hint}
-        </p>
-      ) : null}
-      {error ? (
-        <p id={`${id}-error`} className="mt-1 text-caption font-semibold text-ember">
-          {error}
-        </p>
-      ) : null}
-    </div>
-  );
-}
-
-/** A field with its unit (currency, %) shown after it; screen readers get the unit from the field's hint. */
-function WithUnit({ unit, children }: { unit: string; children: ReactNode }) {
-  return (
-    <div className="flex">
-      {children}
-      <span className="inline-flex items-center rounded-r-card border border-l-0 border-paper-edge bg-paper-deep px-3 text-ink-soft" aria-hidden="true">
-        {unit}
-      </span>
-    </div>
   );
 }
