@@ -66,7 +66,8 @@ export default function ProcessingProgress({ counts, failed, canFix, onChanged }
       {failed.length ? (
         <ul className="mt-3 divide-y divide-paper-edge rounded-card border border-ember/30 bg-ember-light/40" data-testid="failed-frames">
           {failed.map((f) => (
-            <li key={f.id} className="flex flex-wrap items-start justify-between gap-2 px-3 py-2.5">
+            // On a phone the reason gets the full width and the buttons sit under it.
+            <li key={f.id} className="flex flex-col gap-2 px-3 py-2.5 sm:flex-row sm:items-start sm:justify-between">
               <div className="min-w-0 flex-1">
                 <p className="break-words font-semibold text-ink">{f.name}</p>
                 <p className="break-words text-ember">{f.error ?? 'This frame could not be processed.'}</p>
@@ -77,11 +78,11 @@ export default function ProcessingProgress({ counts, failed, canFix, onChanged }
                 ) : null}
               </div>
               {canFix ? (
-                <div className="flex gap-2">
-                  <button type="button" className="btn-quiet !min-h-[40px] !py-1.5" disabled={busy === f.id} onClick={() => act(f, 'retry')}>
+                <div className="flex flex-none gap-2">
+                  <button type="button" className="btn-quiet" disabled={busy === f.id} onClick={() => act(f, 'retry')}>
                     Retry
                   </button>
-                  <button type="button" className="btn-quiet !min-h-[40px] !py-1.5" disabled={busy === f.id} onClick={() => act(f, 'remove')}>
+                  <button type="button" className="btn-quiet" disabled={busy === f.id} onClick={() => act(f, 'remove')}>
                     Remove
                   </button>
                 </div>
