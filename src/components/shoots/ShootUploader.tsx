@@ -42,7 +42,9 @@ export interface UploaderSetup {
 export function countedWords(one: string, many: string, processing: { one: string; many: string }): Record<string, unknown> {
   const counted = (a: string, b: string) => ({ 0: a, 1: b });
   return {
-    dropPasteFiles: `Drop ${many} here or %{browseFiles}`,
+    // Worded so a phone, which cannot drag files, still reads sense: the button comes first.
+    dropPasteFiles: `%{browseFiles} or drop them here from a computer`,
+    browseFiles: `Choose ${many}`,
     dashboardTitle: `${one[0]!.toUpperCase()}${one.slice(1)} uploader`,
     xFilesSelected: counted(`%{smart_count} ${one} selected`, `%{smart_count} ${many} selected`),
     uploadingXFiles: counted(`Sending %{smart_count} ${one}`, `Sending %{smart_count} ${many}`),
@@ -317,7 +319,6 @@ function UppyDashboard({ uppy, limits, setup }: { uppy: Uppy<Meta, Body>; limits
     () => ({
       strings: {
         ...countedWords('frame', 'frames', { one: 'Adding %{smart_count} frame to the shoot', many: 'Adding %{smart_count} frames to the shoot' }),
-        browseFiles: 'browse',
         addMore: 'Add more',
         uploading: 'Sending',
         complete: 'All sent',
