@@ -15,7 +15,9 @@ import { PRINCIPALS, type Principal, type Row, type World } from './access/types
 
 // Every rows-*.ts file contributes the rows of its area; together they must cover src/pages.
 const modules = import.meta.glob<{ rows: Record<string, Row[]> }>('./access/rows-*.ts', { eager: true });
-const MATRIX: Record<string, Row[]> = Object.assign({}, ...Object.values(modules).map((m) => m.rows));
+// Two areas may own rows of one route file (DELETE and PATCH of a shoot): their rows are joined, never replaced.
+const MATRIX: Record<string, Row[]> = {};
+for (const m of Object.values(modules)) for (const [file, rows] of Object.entries(m.rows)) (MATRIX[file] ??= []).push(...rows);
 
 function pageFiles(dir: string, base = dir): string[] {
   return readdirSync(dir, { withFileTypes: true }).flatMap((d) => {

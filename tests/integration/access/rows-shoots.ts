@@ -33,6 +33,20 @@ export const rows: Record<string, Row[]> = {
     { method: 'GET', path: (w) => `/desk/shoots/${w.shootOther}`, expect: { ...all(302), ownerA: 404, retoucherA: 404, ownerB: 200 } },
     { method: 'GET', path: () => '/desk/shoots/not-a-shoot-id', expect: { ...all(302), ownerA: 404, retoucherA: 404, ownerB: 404 } },
   ],
+  // Shoot details: owners only. A title longer than allowed is refused after access is granted (422), so
+  // nothing about shoot A changes; an archived shoot refuses any change (409). The page of studio B's
+  // shoot is 403 for a retoucher of A: the role is checked before the shoot is looked up.
+  'desk/shoots/[shootId]/details': [
+    { method: 'GET', path: (w) => `/desk/shoots/${w.shootA}/details`, expect: { ...all(302), ownerA: 200, retoucherA: 403, ownerB: 404 } },
+    { method: 'GET', path: (w) => `/desk/shoots/${w.shootOther}/details`, expect: { ...all(302), ownerA: 404, retoucherA: 403, ownerB: 200 } },
+  ],
+  'api/shoots/[shootId]/index': [
+    { method: 'PATCH', path: (w) => `/api/shoots/${w.shootA}`, body: () => ({ title: 'x'.repeat(161) }), expect: memberApi(422, 403, 422) },
+    { method: 'PATCH', path: (w) => `/api/shoots/${w.shootArchived}`, body: () => ({ title: 'Matrix title' }), expect: memberApi(409, 403, 404) },
+    // An empty change: studio B's owner gets through and nothing changes; studio A's owner finds nothing.
+    { method: 'PATCH', path: (w) => `/api/shoots/${w.shootOther}`, body: () => ({}), expect: memberApi(404, 403, 200) },
+    { method: 'PATCH', path: () => '/api/shoots/not-a-shoot-id', body: () => ({ title: 'Matrix title' }), expect: memberApi(404, 403, 404) },
+  ],
   'api/shoots/index': [{ method: 'POST', path: () => '/api/shoots', body: newShoot, expect: memberApi(201, 403, 404) }],
   'api/shoots/[shootId]/uploads/sign': [
     { method: 'POST', path: (w) => `/api/shoots/${w.shootA}/uploads/sign`, body: () => ({ method: 'PUT', key: '', fileName: 'matrix.jpg', size: 1000 }), expect: memberApi(200, 403, 404) },
