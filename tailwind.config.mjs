@@ -11,6 +11,8 @@ export default {
         moss: { DEFAULT: '#3f6b4a', light: '#d5e6d7' },
         amber: { DEFAULT: '#8a5a00', light: '#f6e3b8' },
         ember: { DEFAULT: '#a3222a', light: '#f5d3d3' },
+        // The studio's own colour in its clients' gallery (set on <body> as --brand; clay when unset).
+        brand: 'var(--brand, #a4492b)',
       },
       fontFamily: {
         display: ['Lora', 'Georgia', 'serif'],

@@ -104,6 +104,7 @@ test('the retoucher uploads and matches finals, the owner hands off, the client 
   await owner.goto(`/desk/shoots/${shoot.shoot.id}/finals`);
   await hydrated(owner);
   await owner.getByRole('button', { name: 'Hand off finals' }).click();
+  await owner.getByRole('button', { name: 'Hand off and e-mail' }).click();
   await expect(owner.getByRole('status').filter({ hasText: 'Handed off.' })).toBeVisible();
   await expect(owner.locator('[data-stage]').first()).toHaveAttribute('data-stage', 'delivered');
   // The panel is drawn for the side column and for narrow screens; one of them shows.

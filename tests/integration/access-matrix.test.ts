@@ -41,10 +41,10 @@ describe('access matrix', () => {
     const expiring = await makeShoot(a.studioId);
     const locked = await makeShoot(a.studioId, { stage: 'picks_in' });
     const archived = await makeShoot(a.studioId, { stage: 'archived' });
-    // Frames for the frame routes, inserted directly: failed, with keys under their shoot's prefix.
-    const frame = async (studioId: string, shootId: string) => {
+    // Frames for the frame routes, inserted directly (failed unless said), with keys under their shoot's prefix.
+    const frame = async (studioId: string, shootId: string, state: 'failed' | 'ready' = 'failed') => {
       const id = randomUUID();
-      await db()('frames').insert({ id, studio_id: studioId, shoot_id: shootId, object_key: `studios/${studioId}/shoots/${shootId}/originals/${id}.jpg`, original_name: 'matrix.jpg', bytes: 1000, state: 'failed', error: 'Test frame.' });
+      await db()('frames').insert({ id, studio_id: studioId, shoot_id: shootId, object_key: `studios/${studioId}/shoots/${shootId}/originals/${id}.jpg`, original_name: 'matrix.jpg', bytes: 1000, state, error: state === 'failed' ? 'Test frame.' : null });
       return id;
     };
     // A ready frame of shoot B (same studio) with a thumbnail and a crop, for the media route; shoot A
@@ -57,7 +57,7 @@ describe('access matrix', () => {
     world = {
       variantThumbA, variantCropA,
       shootA: shootA.shoot.id, shootB: shootB.shoot.id, shootOther: other.shoot.id, tokenA: shootA.token, clientA: shootA.client.id,
-      studioA: a.studioId, frameA: await frame(a.studioId, shootA.shoot.id), frameLocked: await frame(a.studioId, locked.shoot.id), frameOther: await frame(b.studioId, other.shoot.id),
+      studioA: a.studioId, frameA: await frame(a.studioId, shootA.shoot.id), frameLocked: await frame(a.studioId, locked.shoot.id, 'ready'), frameOther: await frame(b.studioId, other.shoot.id),
       shootArchived: archived.shoot.id,
     };
 

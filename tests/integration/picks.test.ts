@@ -8,7 +8,7 @@ import { randomUUID, createHash } from 'node:crypto';
 import sharp from 'sharp';
 import { Agent } from '../support/http';
 import { makeStudio, makeShoot, memberAgent, clientAgent, type TestStudio } from '../support/factories';
-import { waitForMail, mailsTo } from '../support/mail';
+import { waitForMail, mailsTo, rawMail } from '../support/mail';
 import { db } from '../../src/lib/server/db';
 import { keys, putObject } from '../../src/lib/server/storage';
 import { escapeHtml } from '../../src/lib/escape';
@@ -90,6 +90,10 @@ describe('sending the viewing link', () => {
     expect(mail.text).toContain(`open until ${expiry}`);
     expect(mail.text).toContain('the passcode I gave you');
     expect(mail.text).not.toContain('fern-42');
+    // Replies reach the studio's contact address, not Fillcard's sender.
+    const replyTo = await db()('studios').where({ id: studio.studioId }).first('name', 'contact_email');
+    expect(replyTo.contact_email).toBeTruthy();
+    expect((await rawMail(mail)).split(/\r?\n/)).toContain(`Reply-To: ${replyTo.name} <${replyTo.contact_email}>`);
 
     expect((await db()('shoots').where({ id: shoot.id }).first('link_sent_at')).link_sent_at).not.toBeNull();
     const logged = await db()('audit_log').where({ subject_id: shoot.id, action: 'link.sent' }).first('details');
@@ -181,7 +185,12 @@ describe('sending the viewing link', () => {
     expect((await client.get(`/api/gallery/${shoot.id}/frames`)).status).toBe(200);
     expect((await owner.fetch(`/api/shoots/${shoot.id}/link`, { method: 'DELETE' })).status).toBe(200);
     expect((await client.get(`/api/gallery/${shoot.id}/frames`)).status).toBe(401);
-    expect((await new Agent().get(`/g/${token}`)).status).toBe(404);
+    // The withdrawn link still says whose it was, so the client knows whom to ask.
+    const old = await new Agent().get(`/g/${token}`);
+    expect(old.status).toBe(410);
+    const page = await old.text();
+    expect(page).toContain('This link no longer works');
+    expect(page).toContain((await db()('studios').where({ id: studio.studioId }).first('name')).name);
     expect(await db()('audit_log').where({ subject_id: shoot.id, action: 'link.revoked' }).first('id')).toBeTruthy();
   });
 });

@@ -32,3 +32,8 @@ export function firstLink(mail: CaughtMail, pattern: RegExp): string {
   if (!m) throw new Error(`no link matching ${pattern} in "${mail.subject}"`);
   return m[0];
 }
+
+/** The message as it went over SMTP (headers and body), for headers the catcher does not parse, such as Reply-To. */
+export async function rawMail(mail: CaughtMail): Promise<string> {
+  return (await fetch(`${MAILDEV}/api/email/${mail.id}/source`)).text();
+}

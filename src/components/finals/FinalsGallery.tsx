@@ -33,7 +33,7 @@ export default function FinalsGallery({ initial }: { initial: GalleryFinalsData 
           Downloads close on <strong className="text-ink">{day(data.downloadUntil)}</strong>: save copies of your own before then.
         </p>
         <div className="mt-4 grid gap-3 sm:grid-cols-2">
-          <a className="btn-accent" href={data.zip.finalsUrl} download={data.zip.finalsName} data-testid="download-all">
+          <a className="btn bg-brand text-white no-underline hover:opacity-90" href={data.zip.finalsUrl} download={data.zip.finalsName} data-testid="download-all">
             Download all {n === 1 ? 'the photo' : `${n} photos`} (ZIP, {formatBytes(data.zip.finalsBytes)})
           </a>
           <a className="btn-quiet" href={data.zip.cropsUrl} download={data.zip.cropsName} data-testid="download-crops">

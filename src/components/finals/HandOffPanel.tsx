@@ -8,6 +8,8 @@ const EXTEND_CHOICES = [7, 14, 30, 60, 90];
 /** Handing the finals to the client, and afterwards their download date, with "download all" for the studio. */
 export default function HandOffPanel({ data, onChanged, idSuffix = '' }: { data: FinalsDeskData; onChanged: () => void; idSuffix?: string }) {
   const [confirm, setConfirm] = useState<string | null>(null);
+  // Handing off e-mails the client at once, so it takes a second, deliberate press.
+  const [asking, setAsking] = useState(false);
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState('');
   const [link, setLink] = useState<string | null>(null);
@@ -122,7 +124,7 @@ export default function HandOffPanel({ data, onChanged, idSuffix = '' }: { data:
   const missing = counts.picks - counts.ready;
   return (
     <section className="card p-5" aria-labelledby={`handoff-heading${idSuffix}`} data-testid="handoff">
-      <h2 id={`handoff-heading${idSuffix}`} className="text-lead">Hand off to {data.clientName}</h2>
+      <h2 id={`handoff-heading${idSuffix}`} className="text-lead">{data.can.handOff ? `Hand off to ${data.clientName}` : 'Hand-off'}</h2>
       <p className="text-ink-soft">
         {counts.picks === 0
           ? 'Once the client sends picks and their finals are uploaded, hand them off from here.'
@@ -144,13 +146,22 @@ export default function HandOffPanel({ data, onChanged, idSuffix = '' }: { data:
                 <button type="button" className="btn-quiet" onClick={() => setConfirm(null)}>Not yet</button>
               </div>
             </div>
+          ) : asking ? (
+            <div className="mt-3 rounded-card bg-paper-deep p-3" role="group" aria-label="Confirm the hand-off">
+              <p>E-mail {data.clientName} that the finals are ready to download?</p>
+              <div className="mt-2 flex flex-wrap gap-2">
+                <button type="button" className="btn-accent" disabled={busy} onClick={() => doHandOff(false)}>Hand off and e-mail</button>
+                <button type="button" className="btn-quiet" onClick={() => setAsking(false)}>Not yet</button>
+              </div>
+            </div>
           ) : (
-            <button type="button" className="btn-accent mt-3 w-full" disabled={busy || counts.ready === 0} onClick={() => doHandOff(false)}>
+            <button type="button" className="btn-accent mt-3 w-full" disabled={busy || counts.ready === 0} onClick={() => setAsking(true)}>
               Hand off finals
             </button>
           )}
         </>
       ) : null}
+      {!data.can.handOff && counts.picks > 0 ? <p className="mt-2 text-caption text-ink-faint">The studio’s owner hands the finals to {data.clientName} when they are ready.</p> : null}
       {error ? <p className="notice-error mt-3" role="alert">{error}</p> : null}
       {zipLinks}
     </section>

@@ -48,10 +48,9 @@ export default function CompareFrames({ pair, picks, canPick, onKeep, onClose }:
                       ref={i === 0 ? firstAction : undefined}
                       type="button"
                       onClick={() => onKeep(frame, other)}
-                      className="btn !min-h-[44px] text-white"
-                      style={{ background: 'var(--brand, #a4492b)' }}
+                      className="btn !min-h-[44px] bg-brand text-white"
                     >
-                      <PickMark picked />
+                      <PickMark picked={picks.has(frame.id)} />
                       Pick this one
                     </button>
                   ) : null}

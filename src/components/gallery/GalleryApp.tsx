@@ -132,8 +132,8 @@ function Gallery({ initial }: Props) {
           </div>
         ) : null}
         <div className="flex items-center justify-between gap-3">
-          <PickTally picked={picks.size} terms={data.terms} compact />
-          <a href={`/gallery/${shootId}/review`} className="btn flex-none text-white no-underline hover:opacity-90" style={{ background: 'var(--brand, #a4492b)' }}>
+          <PickTally picked={picks.size} terms={data.terms} compact paid={data.extrasPaid} />
+          <a href={`/gallery/${shootId}/review`} className="btn flex-none text-white no-underline hover:opacity-90 bg-brand">
             {data.submittedAt ? 'Your picks' : 'Review & send'}
           </a>
         </div>
@@ -185,7 +185,7 @@ interface TileProps {
 
 function FrameTile({ frame, position, total, pick, canPick, comparing, chosen, onOpen, onToggle }: TileProps) {
   const picked = !!pick;
-  const ring = chosen ? 'ring-4 ring-ink' : picked ? 'ring-[3px] ring-[color:var(--brand,#a4492b)]' : 'ring-1 ring-paper-edge';
+  const ring = chosen ? 'ring-4 ring-ink' : picked ? 'ring-[3px] ring-brand' : 'ring-1 ring-paper-edge';
   return (
     <li className="min-w-0">
       <div className={`group relative overflow-hidden rounded-card bg-paper-deep ${ring}`}>
@@ -215,14 +215,13 @@ function FrameTile({ frame, position, total, pick, canPick, comparing, chosen, o
             aria-pressed={picked}
             aria-label={`Pick ${frame.name}`}
             onClick={() => onToggle(!picked)}
-            className={`absolute right-1.5 top-1.5 inline-flex min-h-[44px] min-w-[44px] items-center justify-center gap-1 rounded-full px-2.5 text-caption font-semibold shadow-card ${picked ? 'text-white' : 'bg-white/90 text-ink hover:bg-white'}`}
-            style={picked ? { background: 'var(--brand, #a4492b)' } : undefined}
+            className={`absolute right-1.5 top-1.5 inline-flex min-h-[44px] min-w-[44px] items-center justify-center gap-1 rounded-full px-2.5 text-caption font-semibold shadow-card ${picked ? 'bg-brand text-white' : 'bg-white/90 text-ink hover:bg-white'}`}
           >
             <PickMark picked={picked} />
             <span className="hidden sm:inline">Pick</span>
           </button>
         ) : picked ? (
-          <span className="absolute right-2 top-2 rounded-full p-1 text-white shadow-card" style={{ background: 'var(--brand, #a4492b)' }} aria-hidden="true"><PickMark picked /></span>
+          <span className="absolute right-2 top-2 rounded-full p-1 text-white shadow-card bg-brand" aria-hidden="true"><PickMark picked /></span>
         ) : null}
         {comparing && chosen ? <span className="absolute left-2 top-2 rounded-full bg-ink px-2 py-0.5 text-caption font-semibold text-paper" aria-hidden="true">Chosen</span> : null}
       </div>

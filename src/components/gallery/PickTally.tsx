@@ -27,23 +27,26 @@ interface Props {
   terms: GalleryTerms;
   /** Compact: one line for the phone's bottom bar. */
   compact?: boolean;
+  /** The extras are paid: the sum is history, not a debt. */
+  paid?: boolean;
 }
 
 /** The tally, announced politely to screen readers as it changes. */
-export default function PickTally({ picked, terms, compact }: Props) {
+export default function PickTally({ picked, terms, compact, paid }: Props) {
   const t = tallyWords(picked, terms);
   const over = t.price.extras > 0;
   return (
     <div aria-live="polite" aria-atomic="true" className="min-w-0" data-testid="pick-tally">
       <p className="font-semibold leading-tight">
-        <span className="font-display text-lead tabular-nums" style={{ color: 'var(--brand, #a4492b)' }}>{picked}</span>
+        <span className="font-display text-lead tabular-nums text-brand">{picked}</span>
         <span className="text-ink-soft"> picked of </span>
         <span className="tabular-nums">{terms.allowance}</span>
         <span className="text-ink-soft"> included</span>
       </p>
       <p className={`text-caption ${over ? 'text-ink' : 'text-ink-soft'} ${compact ? 'leading-snug' : ''}`}>
         {t.extras}{over ? '.' : ''}
-        {over && t.tax ? <> {t.tax}</> : null}
+        {over && t.tax && !paid ? <> {t.tax}</> : null}
+        {over && paid ? <> <span className="font-semibold text-moss">Paid.</span></> : null}
       </p>
     </div>
   );

@@ -117,8 +117,7 @@ export default function ProofViewer({ frames, index, picks, canPick, saving, onI
               aria-pressed={!!pick}
               aria-label={`Pick ${frame.name}`}
               onClick={() => onToggle(frame, !pick)}
-              className={`btn w-full text-lead ${pick ? 'text-white' : 'border border-white/30 text-paper hover:bg-white/10'}`}
-              style={pick ? { background: 'var(--brand, #a4492b)' } : undefined}
+              className={`btn w-full text-lead ${pick ? 'bg-brand text-white' : 'border border-white/30 text-paper hover:bg-white/10'}`}
             >
               <PickMark picked={!!pick} />
               Pick
@@ -199,7 +198,7 @@ function NoteField({ frame, note, saving, onSave }: NoteProps) {
         onBlur={flush}
         aria-describedby={`${id}-state`}
         placeholder="e.g. soften the shadow under the chin"
-        className="block w-full rounded-card border border-white/20 bg-black/25 px-3 py-2 text-paper placeholder:text-paper/40 focus:border-[color:var(--brand,#a4492b)] focus:outline-none focus:ring-2 focus:ring-white/30"
+        className="block w-full rounded-card border border-white/20 bg-black/25 px-3 py-2 text-paper placeholder:text-paper/40 focus:border-brand focus:outline-none focus:ring-2 focus:ring-white/30"
       />
       <p id={`${id}-state`} className="mt-1 flex justify-between text-caption text-paper/60">
         <span>{dirty ? 'Not saved yet' : saving ? 'Saving…' : 'Saved'}</span>

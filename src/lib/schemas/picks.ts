@@ -83,6 +83,8 @@ export interface GalleryData {
   canPick: boolean;
   /** Picks were sent with extras and the extras are not paid yet. */
   awaitingPayment: boolean;
+  /** The extras have been paid for. */
+  extrasPaid: boolean;
 }
 
 export interface SubmitResult {

@@ -28,7 +28,7 @@ export interface SessionClient {
 export type LinkState =
   | { kind: 'ok'; shoot: ShootRow }
   | { kind: 'unknown' }
-  | { kind: 'expired'; shoot: ShootRow };
+  | { kind: 'closed'; shoot: ShootRow; reason: 'revoked' | 'expired' | 'archived' };
 
 type ShootRow = Record<string, any> & { id: string; studio_id: string; client_id: string };
 
@@ -50,8 +50,8 @@ export async function findShootByLinkToken(token: string): Promise<LinkState> {
   const shoot = await db()('shoots').where({ link_token_hash: hashToken(token) }).first();
   if (!shoot) return { kind: 'unknown' };
   const closed = galleryClosedReason(shoot);
-  if (closed === 'revoked' || closed === 'draft') return { kind: 'unknown' };
-  if (closed) return { kind: 'expired', shoot };
+  if (closed === 'draft') return { kind: 'unknown' };
+  if (closed) return { kind: 'closed', shoot, reason: closed };
   return { kind: 'ok', shoot };
 }
 
@@ -67,7 +67,7 @@ export async function issueViewingLink(shootId: string, studioId: string): Promi
 }
 
 export async function revokeViewingLink(shootId: string, studioId: string) {
-  await db()('shoots').where({ id: shootId, studio_id: studioId }).update({ link_revoked_at: db().fn.now(), link_token_hash: null });
+  await db()('shoots').where({ id: shootId, studio_id: studioId }).update({ link_revoked_at: db().fn.now() });
   await db()('client_sessions').where({ shoot_id: shootId }).delete();
 }
 

@@ -53,12 +53,25 @@ function smtp(): Transporter {
   return transporter;
 }
 
+/**
+ * Mail goes out from Fillcard's address, but a reply should reach the studio: its contact address
+ * from settings, else its first owner's sign-in address. With the studio's name as the display name.
+ */
+async function studioReplyTo(studioId: string): Promise<{ name: string; address: string } | undefined> {
+  const studio = await db()('studios').where({ id: studioId }).first('name', 'contact_email');
+  if (!studio) return undefined;
+  const address = studio.contact_email || (await db()('memberships as m').join('users as u', 'u.id', 'm.user_id')
+    .where({ 'm.studio_id': studioId, 'm.role': 'owner' }).orderBy('m.created_at').first('u.email'))?.email;
+  return address ? { name: studio.name, address } : undefined;
+}
+
 /** The worker's half: sends one outbox row once. Throws on SMTP failure so the job retries. */
 export async function deliverOutboxRow(id: string) {
   const row = await db()('mail_outbox').where({ id }).first();
   if (!row || row.state === 'sent') return;
   try {
-    await smtp().sendMail({ from: config().MAIL_FROM, to: row.to_address, subject: row.subject, html: row.html, text: row.text });
+    const replyTo = row.studio_id ? await studioReplyTo(row.studio_id) : undefined;
+    await smtp().sendMail({ from: config().MAIL_FROM, replyTo, to: row.to_address, subject: row.subject, html: row.html, text: row.text });
     await db()('mail_outbox').where({ id }).update({ state: 'sent', sent_at: db().fn.now(), attempts: row.attempts + 1, last_error: null });
   } catch (err) {
     await db()('mail_outbox').where({ id }).update({ attempts: row.attempts + 1, last_error: String((err as Error).message).slice(0, 500) });

@@ -112,6 +112,7 @@ export async function galleryData(client: SessionClient): Promise<GalleryData> {
     submittedAt,
     canPick: shoot.stage === 'proofing' && !submittedAt,
     awaitingPayment: !!submittedAt && shoot.stage === 'proofing' && extras > 0 && !paid,
+    extrasPaid: paid,
   };
 }
 
@@ -297,6 +298,8 @@ export interface SentLink {
   url: string;
   to: string;
   sentAt: string;
+  /** An earlier link existed and has stopped working. */
+  replaced: boolean;
 }
 
 function extraPriceText(shoot: { extra_price_minor: number; currency: string; tax_mode: string; tax_rate_bp: number }) {
@@ -328,8 +331,8 @@ export async function sendViewingLink(member: SessionMember, shootId: string, in
 
   const token = newToken();
   const url = viewingLinkUrl(token);
-  const { outboxId, to, sentAt } = await db().transaction(async (trx) => {
-    const locked = await trx('shoots').where({ id: shoot.id, studio_id: member.studioId }).forUpdate().first('stage', 'link_token_hash');
+  const { outboxId, to, sentAt, replaced } = await db().transaction(async (trx) => {
+    const locked = await trx('shoots').where({ id: shoot.id, studio_id: member.studioId }).forUpdate().first('stage', 'link_token_hash', 'link_revoked_at');
     const client = await trx('clients').where({ id: shoot.client_id, studio_id: member.studioId }).first('name', 'email');
     const studio = await trx('studios').where({ id: member.studioId }).first('name', 'brand_colour');
     // The same steps as issueViewingLink, inside this transaction so link and e-mail commit as one.
@@ -362,19 +365,20 @@ export async function sendViewingLink(member: SessionMember, shootId: string, in
     const id = await queueMail({ to: client.email, studioId: member.studioId, subject: `Your proofs from ${studio.name}`, ...body }, trx);
     await audit({
       studioId: member.studioId, actorKind: 'member', actorId: member.userId, action: 'link.sent', subjectType: 'shoot', subjectId: shoot.id,
-      details: { to: client.email, replacedEarlierLink: !!locked.link_token_hash, withMessage: !!input.message },
+      details: { to: client.email, replacedEarlierLink: !!locked.link_token_hash && !locked.link_revoked_at, withMessage: !!input.message },
     }, trx);
-    return { outboxId: id, to: client.email as string, sentAt: new Date(updated.link_sent_at).toISOString() };
+    return { outboxId: id, to: client.email as string, sentAt: new Date(updated.link_sent_at).toISOString(), replaced: !!locked.link_token_hash && !locked.link_revoked_at };
   });
   await dispatchMail([outboxId]);
-  return { url, to, sentAt };
+  return { url, to, sentAt, replaced };
 }
 
 /** Withdraws the viewing link: it and every session opened with it stop working at once. */
 export async function withdrawViewingLink(member: SessionMember, shootId: string): Promise<void> {
   const shoot = await shootForMember(member, shootId);
   await db().transaction(async (trx) => {
-    await trx('shoots').where({ id: shoot.id, studio_id: member.studioId }).update({ link_revoked_at: trx.fn.now(), link_token_hash: null, updated_at: trx.fn.now() });
+    // The hash stays, so the withdrawn link can still show whose it was and how to reach them.
+    await trx('shoots').where({ id: shoot.id, studio_id: member.studioId }).update({ link_revoked_at: trx.fn.now(), updated_at: trx.fn.now() });
     await trx('client_sessions').where({ shoot_id: shoot.id }).delete();
     await audit({ studioId: member.studioId, actorKind: 'member', actorId: member.userId, action: 'link.revoked', subjectType: 'shoot', subjectId: shoot.id }, trx);
   });

@@ -37,7 +37,7 @@ export async function shootPage(astro: AstroGlobal, action: Action): Promise<{ m
     ? await db()('shoots as s').join('clients as c', 'c.id', 's.client_id')
         .where({ 's.id': id, 's.studio_id': member.studioId })
         .first('s.*', 'c.name as client_name', 'c.email as client_email',
-          db().raw('(s.link_token_hash IS NOT NULL) AS has_link'), db().raw('(s.passcode_hash IS NOT NULL) AS has_passcode'))
+          db().raw('(s.link_token_hash IS NOT NULL AND s.link_revoked_at IS NULL) AS has_link'), db().raw('(s.passcode_hash IS NOT NULL) AS has_passcode'))
     : null;
   if (!shoot) return astro.rewrite('/404');
   delete shoot.link_token_hash;

@@ -10,7 +10,7 @@ export interface World {
   clientA: string; // the client of shoot A
   studioA: string;
   frameA: string; // a failed frame of shoot A whose original is no longer in storage
-  frameLocked: string; // a frame of studio A's shoot whose picks are in (frames can no longer be removed)
+  frameLocked: string; // a ready frame of studio A's shoot whose picks are in (it can no longer be removed)
   frameOther: string; // a failed frame of shootOther (studio B)
   variantThumbA: string; // the thumbnail of a ready frame of shoot B (studio A)
   variantCropA: string; // a ratio crop of the same frame (studio only until hand-off)

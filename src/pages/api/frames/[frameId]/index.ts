@@ -34,11 +34,15 @@ export const PATCH: APIRoute = route(async (ctx) => {
   return json({ ok: true, rebuildingCrops: !!edit.focus });
 });
 
-/** Deletes a frame with its original and variants, while the client has not yet sent picks. */
+/**
+ * Deletes a frame with its original and variants, while the client has not yet sent picks. A frame
+ * that failed processing never reached the client, so it can be removed later too (not once archived).
+ */
 export const DELETE: APIRoute = route(async (ctx) => {
   const { member, frame } = await loadFrame(ctx);
   const shoot = await db()('shoots').where({ id: frame.shoot_id, studio_id: member.studioId }).first('stage');
-  assertFramesEditable(shoot);
+  if (frame.state !== 'failed') assertFramesEditable(shoot);
+  else if (shoot.stage === 'archived') throw conflict('This shoot is archived; bring it back to change its frames.');
   const variantKeys = await db()('frame_variants').where({ frame_id: frame.id }).pluck('object_key');
   await db().transaction(async (trx) => {
     await trx('frames').where({ id: frame.id }).delete();
