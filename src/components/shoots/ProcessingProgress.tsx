@@ -6,12 +6,15 @@ import ProgressBar from '../ui/ProgressBar';
 interface Props {
   counts: FrameCounts;
   failed: FrameDto[];
-  canFix: boolean;
+  /** Failed frames may be processed again (only while frames can still be added). */
+  canRetry: boolean;
+  /** Failed frames may be removed (they never reached the client, so also after picks). */
+  canRemove: boolean;
   onChanged: () => void;
 }
 
 /** How far the worker has got with the shoot's frames, and what went wrong with which file. */
-export default function ProcessingProgress({ counts, failed, canFix, onChanged }: Props) {
+export default function ProcessingProgress({ counts, failed, canRetry, canRemove, onChanged }: Props) {
   const [busy, setBusy] = useState<string | null>(null);
   const [messages, setMessages] = useState<Record<string, string>>({});
   if (counts.total === 0) return null;
@@ -77,14 +80,18 @@ export default function ProcessingProgress({ counts, failed, canFix, onChanged }
                   </p>
                 ) : null}
               </div>
-              {canFix ? (
+              {canRetry || canRemove ? (
                 <div className="flex flex-none gap-2">
-                  <button type="button" className="btn-quiet" disabled={busy === f.id} onClick={() => act(f, 'retry')}>
-                    Retry
-                  </button>
-                  <button type="button" className="btn-quiet" disabled={busy === f.id} onClick={() => act(f, 'remove')}>
-                    Remove
-                  </button>
+                  {canRetry ? (
+                    <button type="button" className="btn-quiet" disabled={busy === f.id} onClick={() => act(f, 'retry')}>
+                      Retry
+                    </button>
+                  ) : null}
+                  {canRemove ? (
+                    <button type="button" className="btn-quiet" disabled={busy === f.id} onClick={() => act(f, 'remove')}>
+                      Remove
+                    </button>
+                  ) : null}
                 </div>
               ) : null}
             </li>

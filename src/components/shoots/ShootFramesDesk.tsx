@@ -80,7 +80,7 @@ function FramesDesk({ shootId, initial, canUpload, uploadNote, canEdit, limits }
           The frames could not be refreshed: {(query.error as Error).message} Fillcard keeps trying.
         </p>
       ) : null}
-      <ProcessingProgress counts={data.counts} failed={failed} canFix={canUpload && canEdit} onChanged={refreshNow} />
+      <ProcessingProgress counts={data.counts} failed={failed} canRetry={canUpload && canEdit} canRemove={canEdit && data.stage !== 'archived'} onChanged={refreshNow} />
       <FramesBoard frames={data.frames} onOpen={setOpenId} canUpload={canUpload} />
       {openIndex >= 0 ? (
         <FramePanel
