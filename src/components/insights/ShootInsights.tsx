@@ -59,6 +59,8 @@ export default function ShootInsights({ shootId, frames, frameHrefBase }: Props)
   }, [frames]);
 
   const usual = useMemo(() => prefillCamera(frames), [frames]);
+  // Charts count only frames whose EXIF gave settings; the header says how many that is.
+  const withSettings = useMemo(() => frames.filter((f) => f.exposureTimeS != null || f.fNumber != null || f.iso != null || f.focalLengthMm != null).length, [frames]);
 
   if (frames.length === 0) {
     return (
@@ -90,6 +92,7 @@ export default function ShootInsights({ shootId, frames, frameHrefBase }: Props)
         <h2 className="font-display text-title">Shoot insights</h2>
         <p className="mt-1 text-ink-soft">
           {frames.length} frame{frames.length === 1 ? '' : 's'}
+          {withSettings < frames.length ? `, ${withSettings} with camera settings` : ''}
           {usualText ? ` · most used: ${usualText}` : ''}
         </p>
       </header>
