@@ -30,11 +30,16 @@ describe('frame order', () => {
     expect((await listFrames(shootId, studioId)).map((f) => f.name)).toEqual(expected);
   });
 
-  it('numbers frames for downloads in the same order', async () => {
-    const { numbers } = await frameNumbers(shootId);
+  it('numbers the picks for downloads in the same order, 1 to N with no gaps', async () => {
     const rows = await db()('frames').where({ shoot_id: shootId }).select('id', 'original_name');
-    const byNumber = rows.sort((a, b) => numbers.get(a.id)! - numbers.get(b.id)!).map((r) => r.original_name);
-    expect(byNumber).toEqual(expected);
+    // Every frame but IMG_10.jpg is picked: the numbers close up around it.
+    const picked = rows.filter((r) => r.original_name !== 'IMG_10.jpg');
+    await db()('picks').insert(picked.map((r) => ({ studio_id: studioId, shoot_id: shootId, frame_id: r.id })));
+    const { numbers, digits } = await frameNumbers(shootId);
+    const byNumber = picked.sort((a, b) => numbers.get(a.id)! - numbers.get(b.id)!);
+    expect(byNumber.map((r) => r.original_name)).toEqual(expected.filter((n) => n !== 'IMG_10.jpg'));
+    expect(byNumber.map((r) => numbers.get(r.id))).toEqual([1, 2, 3, 4, 5, 6]);
+    expect(digits).toBe(1);
   });
 });
 

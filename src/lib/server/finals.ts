@@ -76,15 +76,14 @@ function assertOwnFinalKey(shoot: { id: string; studio_id: string }, key: string
 // Frame numbers and picks
 
 /**
- * Each frame's place in the shoot as the client counts it: ready, visible frames in capture order,
- * the order of the gallery (a pick hidden later keeps its place). Download names carry this number.
+ * Each pick's number as the client counts their photos: the picks in capture order, 1 to N with no
+ * gaps (the review page counts them the same way). Finals, their crops and download names carry it.
  */
 export async function frameNumbers(shootId: string, q: Db = db()): Promise<{ numbers: Map<string, number>; digits: number }> {
   const { rows } = await q.raw(
     `SELECT id, row_number() OVER (ORDER BY ${captureOrder('f')})::int AS n
        FROM frames f
-      WHERE shoot_id = ? AND state = 'ready'
-        AND (hidden = false OR EXISTS (SELECT 1 FROM picks k WHERE k.frame_id = f.id))`,
+      WHERE shoot_id = ? AND EXISTS (SELECT 1 FROM picks k WHERE k.frame_id = f.id)`,
     [shootId],
   );
   const numbers = new Map<string, number>(rows.map((r: Row) => [r.id, r.n]));
