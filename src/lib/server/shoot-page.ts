@@ -26,6 +26,8 @@ export interface ShootHeader {
   client_email: string;
   studio_id: string;
   light_notes: unknown;
+  /** Ready finals the client has been e-mailed about. */
+  announced_finals: number;
 }
 
 /** For shoot pages: the member and the shoot of their studio, or the response to send instead. */
