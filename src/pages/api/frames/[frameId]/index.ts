@@ -45,6 +45,8 @@ export const DELETE: APIRoute = route(async (ctx) => {
   else if (shoot.stage === 'archived') throw conflict('This shoot is archived; bring it back to change its frames.');
   const variantKeys = await db()('frame_variants').where({ frame_id: frame.id }).pluck('object_key');
   await db().transaction(async (trx) => {
+    // Shoot first, then frame: the order pick writes take them in, so the two never wait on each other.
+    await trx('shoots').where({ id: frame.shoot_id, studio_id: member.studioId }).forUpdate().first('id');
     await trx('frames').where({ id: frame.id }).delete();
     await audit({ studioId: member.studioId, actorKind: 'member', actorId: member.userId, action: 'frame.deleted', subjectType: 'frame', subjectId: frame.id, details: { name: frame.original_name } }, trx);
   });
