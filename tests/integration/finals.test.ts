@@ -250,6 +250,15 @@ describe('finals: upload, match, hand off, download', () => {
     expect(Buffer.from(await file.arrayBuffer()).length).toBeGreaterThan(1000);
     const row = await db()('downloads').where({ shoot_id: shootId, what: 'original' }).first();
     expect(row).toMatchObject({ frame_id: frames['HLP_2042.jpg'], actor_kind: 'member', actor_id: studio.retoucher.id });
+
+    // Viewing it in the browser (to judge focus without the watermark) opens it inline and is not a download.
+    const view = await retoucher.get(`/api/frames/${frames['HLP_2041.jpg']}/original?view=1`);
+    expect(view.status).toBe(302);
+    const shown = await fetch(view.headers.get('location')!);
+    expect(shown.headers.get('content-disposition')).toMatch(/^inline; /);
+    expect(shown.headers.get('content-type')).toBe('image/jpeg');
+    await shown.arrayBuffer();
+    expect(await db()('downloads').where({ shoot_id: shootId, what: 'original' }).count('* as n').first()).toMatchObject({ n: 1 });
   });
 
   it('replaces a final only after a yes, keeping the old one until the new one is ready, then deleting its objects', async () => {

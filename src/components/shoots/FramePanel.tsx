@@ -122,7 +122,15 @@ export default function FramePanel({ frames, index, canEdit, onClose, onNavigate
         <div className="grid flex-1 gap-4 overflow-y-auto p-3 sm:p-4 lg:grid-cols-[minmax(0,1fr)_300px]">
           <div className="min-w-0 space-y-4">
             {frame.state === 'ready' && frame.urls.proof && frame.width && frame.height ? (
-              <FocusEditor frame={frame} focus={focus} editable={editable} onMove={setPending} />
+              <>
+                <FocusEditor frame={frame} focus={focus} editable={editable} onMove={setPending} />
+                {/* The proof carries the watermark; focus is judged on the original, at full size. */}
+                {/\.(jpe?g|png|webp)$/i.test(frame.name) ? (
+                  <a className="text-caption" href={`/api/frames/${frame.id}/original?view=1`} target="_blank" rel="noopener">
+                    Open the original at full size (new tab)
+                  </a>
+                ) : null}
+              </>
             ) : (
               <div className="flex aspect-[3/2] items-center justify-center rounded-card border border-paper-edge bg-paper-deep p-6 text-center">
                 <p className={frame.state === 'failed' ? 'text-ember' : 'text-ink-soft'}>

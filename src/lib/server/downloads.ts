@@ -137,8 +137,8 @@ export async function downloadLog(shootId: string, studioId: string, limit = 200
 // Delivery
 
 /** A redirect to the object itself, signed for five minutes, saved under the given name. */
-export async function redirectToDownload(key: string, fileName: string, contentType = 'image/jpeg'): Promise<Response> {
-  const url = await presignGet(key, { expiresIn: DOWNLOAD_URL_SECONDS, downloadName: fileName, contentType });
+export async function redirectToDownload(key: string, fileName: string, contentType = 'image/jpeg', opts: { inline?: boolean } = {}): Promise<Response> {
+  const url = await presignGet(key, { expiresIn: DOWNLOAD_URL_SECONDS, downloadName: fileName, contentType, inline: opts.inline });
   return new Response(null, { status: 302, headers: { Location: url, 'Cache-Control': 'no-store' } });
 }
 

@@ -105,13 +105,13 @@ export async function listKeys(prefix: string): Promise<string[]> {
 }
 
 /** A presigned GET, optionally with a download file name. */
-export async function presignGet(key: string, opts: { expiresIn?: number; downloadName?: string; contentType?: string; signingDate?: Date } = {}) {
+export async function presignGet(key: string, opts: { expiresIn?: number; downloadName?: string; inline?: boolean; contentType?: string; signingDate?: Date } = {}) {
   return getSignedUrl(
     signer(),
     new GetObjectCommand({
       Bucket: bucket(),
       Key: key,
-      ResponseContentDisposition: opts.downloadName ? contentDisposition(opts.downloadName) : undefined,
+      ResponseContentDisposition: opts.downloadName ? contentDisposition(opts.downloadName, opts.inline ? 'inline' : 'attachment') : undefined,
       ResponseContentType: opts.contentType,
     }),
     { expiresIn: opts.expiresIn ?? 300, signingDate: opts.signingDate },
