@@ -92,12 +92,12 @@ async function hasPaidOrder(shootId: string, q: Db = db()) {
 export async function galleryData(client: SessionClient): Promise<GalleryData> {
   const shoot = await db()('shoots as s').join('studios as st', 'st.id', 's.studio_id')
     .where({ 's.id': client.shootId, 's.studio_id': client.studioId })
-    .first('s.*', 'st.name as studio_name');
+    .first('s.*', 'st.name as studio_name', db().raw(`EXISTS (SELECT 1 FROM orders o WHERE o.shoot_id = s.id AND o.state = 'paid') AS paid`));
   if (!shoot) throw notFound('No such gallery.');
-  const [frames, picks, paid] = await Promise.all([
+  const paid: boolean = shoot.paid;
+  const [frames, picks] = await Promise.all([
     cachedGalleryFrames(shoot.id, shoot.studio_id, String(shoot.frames_version)),
     visiblePicks(shoot.id, shoot.studio_id),
-    hasPaidOrder(shoot.id),
   ]);
   const terms = termsOf(shoot);
   const submittedAt = shoot.picks_submitted_at ? new Date(shoot.picks_submitted_at).toISOString() : null;
