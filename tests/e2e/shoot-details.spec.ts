@@ -25,6 +25,9 @@ test('an owner moves the proof expiry and changes the allowance from the Details
   // Enter in a field sends the form, as in any form.
   await allowance.press('Enter');
   await expect(page.getByTestId('details-status')).toHaveText('Saved: proof expiry date, retouches included.');
+  // The shoot's header above the tabs agrees at once.
+  await expect(page.getByText('6 retouches included')).toBeVisible();
+  await hydrated(page);
 
   const row = await db()('shoots').where({ id: shoot.id }).first('allowance', 'proof_expires_at');
   expect(row.allowance).toBe(6);

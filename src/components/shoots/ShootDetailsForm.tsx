@@ -10,7 +10,14 @@ import { TAX_CAUTION } from './NewShootForm';
 interface Props {
   shootId: string;
   initial: ShootDetails;
+  /** The fields saved just before this page was loaded again (see below), for the status line. */
+  savedFields?: string[];
 }
+
+/** Fields the shoot's header shows: after saving one of them the page loads again, so the header agrees. */
+const HEADER_FIELDS = new Set(['title', 'shotOn', 'allowance', 'extraPriceMinor', 'currency']);
+
+const savedWords = (changed: string[]) => `Saved: ${changed.map((c) => CHANGED_WORDS[c] ?? c).join(', ')}.`;
 
 /** What the owner types; money in major units and tax in per cent, as in the new-shoot form. */
 interface FormValues {
@@ -105,12 +112,14 @@ function toPatch(v: FormValues, saved: ShootDetails): { input: Record<string, un
 
 const checkDetails = zodResolver(shootDetailsSchema);
 
-export default function ShootDetailsForm({ shootId, initial }: Props) {
+export { CHANGED_WORDS };
+
+export default function ShootDetailsForm({ shootId, initial, savedFields }: Props) {
   const ids = useId();
   const saved = useRef(initial);
   const [details, setDetails] = useState(initial);
   const [serverError, setServerError] = useState<string | null>(null);
-  const [status, setStatus] = useState<string | null>(null);
+  const [status, setStatus] = useState<string | null>(savedFields?.length ? savedWords(savedFields) : null);
 
   // The shared schema decides; this only reads typed money and per cent first and puts each message on its field.
   const resolver = useRef<Resolver<FormValues>>(async (values, context, options) => {
@@ -157,7 +166,11 @@ export default function ShootDetailsForm({ shootId, initial }: Props) {
       setDetails(data.details);
       reset(valuesOf(data.details));
       const changed = data.changed ?? [];
-      setStatus(changed.length ? `Saved: ${changed.map((c) => CHANGED_WORDS[c] ?? c).join(', ')}.` : 'Nothing to save: every detail is as it was.');
+      if (changed.some((c) => HEADER_FIELDS.has(c))) {
+        window.location.assign(`${window.location.pathname}?saved=${encodeURIComponent(changed.join(','))}`);
+        return;
+      }
+      setStatus(changed.length ? savedWords(changed) : 'Nothing to save: every detail is as it was.');
       return;
     }
     if (res.status === 401) {
