@@ -26,7 +26,12 @@ const sessions = defineMiddleware(async (ctx, next) => {
 
 /** Headers that keep pages from being framed, sniffed or leaking links. */
 const securityHeaders = defineMiddleware(async (ctx, next) => {
-  const response = await next();
+  let response = await next();
+  // Pages that set their own status keep Astro's "OK" reason phrase ("410 OK"); drop it so the
+  // status line reads right.
+  if (response.status !== 200 && response.statusText === 'OK') {
+    response = new Response(response.body, { status: response.status, headers: response.headers });
+  }
   const h = response.headers;
   h.set('X-Content-Type-Options', 'nosniff');
   h.set('Referrer-Policy', 'same-origin');

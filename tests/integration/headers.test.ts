@@ -27,6 +27,13 @@ describe('security headers', () => {
     });
   }
 
+  it('a page that sets its own status has a status line that says so (404 Not Found, not 404 OK)', async () => {
+    const res = await fetch(`${APP}/g/not-a-real-link-token-at-all`);
+    expect(res.status).toBe(404);
+    expect(res.statusText).toBe('Not Found');
+    await res.arrayBuffer();
+  });
+
   it('every inline script on a page is one the policy hashes', async () => {
     const { createHash } = await import('node:crypto');
     const res = await fetch(APP + '/');

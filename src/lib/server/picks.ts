@@ -316,7 +316,7 @@ export async function sendViewingLink(member: SessionMember, shootId: string, in
   const shoot = await shootForMember(member, shootId);
   if (shoot.stage === 'archived') throw conflict('This shoot is archived. Bring it back before sending a link.');
   if (['draft', 'proofing', 'picks_in', 'retouching'].includes(shoot.stage) && new Date(shoot.proof_expires_at) < new Date()) {
-    throw conflict(`The proofs closed on ${dateText(shoot.proof_expires_at)}. Move the proof expiry date first, then send the link.`);
+    throw conflict(`The proofs closed on ${dateText(shoot.proof_expires_at)}. Move the proof expiry date on the Details tab first, then send the link.`);
   }
   const ready = await readyFrameCount(shoot.id, shoot.studio_id);
   if (ready === 0) throw conflict('There are no ready frames to show yet. Upload frames and wait until they are processed, then send the link.');
