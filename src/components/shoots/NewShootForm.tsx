@@ -2,9 +2,9 @@ import { useId, useState } from 'react';
 import { useForm, type FieldErrors, type Resolver } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { newShootSchema, type NewShootInput } from '../../lib/schemas/shoot';
-import { SUPPORTED_CURRENCIES, currencyName, parseMoney, toDecimalText } from '../../lib/currency';
+import { SUPPORTED_CURRENCIES, parseMoney, toDecimalText } from '../../lib/currency';
 import { parsePercent, percentText } from './percent';
-import { CHOICE, Field, WithUnit, flattenErrors, safeMinorUnits } from './form-fields';
+import { CHOICE, Field, PackageTermsFields, flattenErrors } from './form-fields';
 
 export interface ClientChoice {
   id: string;
@@ -140,7 +140,6 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
   });
   const clientKind = watch('clientKind');
   const currency = watch('currency');
-  const digits = safeMinorUnits(currency);
 
   async function submit(values: FormValues) {
     setServerError(null);
@@ -245,45 +244,7 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
       <fieldset className="card p-5 sm:p-6">
         <legend className="sr-only">Package</legend>
         <h2 className="text-title">Package</h2>
-        <div className="mt-4 grid gap-4 sm:grid-cols-3">
-          <Field {...fieldProps('allowance')} label="Retouches included" hint="The allowance: picks up to this number cost nothing extra.">
-            <input className="field" inputMode="numeric" {...input('allowance', true)} />
-          </Field>
-          <Field {...fieldProps('extraPrice')} label="Price per extra retouch" hint={digits === 0 ? `In whole ${currency}, e.g. 3000.` : `In ${currency}, e.g. 25${digits === 2 ? '.00' : '.' + '0'.repeat(digits)}.`}>
-            <WithUnit unit={currency}>
-              <input className="field rounded-r-none" inputMode="decimal" {...input('extraPrice', true)} />
-            </WithUnit>
-          </Field>
-          <Field {...fieldProps('currency')} label="Currency">
-            <select className="field" {...input('currency')}>
-              {SUPPORTED_CURRENCIES.map((c) => (
-                <option key={c} value={c}>
-                  {c} — {currencyName(c)}
-                </option>
-              ))}
-            </select>
-          </Field>
-        </div>
-        <div className="mt-4 grid gap-4 sm:grid-cols-3">
-          <Field {...fieldProps('taxRate')} label="Tax rate" hint="In percent, e.g. 20; 0 when you charge no tax.">
-            <WithUnit unit="%">
-              <input className="field rounded-r-none" inputMode="decimal" {...input('taxRate', true)} />
-            </WithUnit>
-          </Field>
-          <div className="sm:col-span-2">
-            <span className="label" id={`${ids}-taxMode-label`}>
-              Your prices
-            </span>
-            <div className="flex flex-wrap gap-2" role="radiogroup" aria-labelledby={`${ids}-taxMode-label`}>
-              <label className={CHOICE}>
-                <input type="radio" value="exclusive" {...register('taxMode')} /> exclude tax (added on top)
-              </label>
-              <label className={CHOICE}>
-                <input type="radio" value="inclusive" {...register('taxMode')} /> include tax
-              </label>
-            </div>
-          </div>
-        </div>
+        <PackageTermsFields ids={ids} currency={currency} currencies={SUPPORTED_CURRENCIES} input={input} fieldProps={fieldProps} taxModeProps={register('taxMode')} />
         <p className="notice-caution mt-4 text-caption">{TAX_CAUTION}</p>
       </fieldset>
 

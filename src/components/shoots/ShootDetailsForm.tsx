@@ -2,9 +2,9 @@ import { useId, useRef, useState } from 'react';
 import { useForm, type FieldErrors, type Resolver } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { shootDetailsSchema, TERMS_FIELDS, type ShootDetails, type ShootDetailsResult } from '../../lib/schemas/shoot';
-import { SUPPORTED_CURRENCIES, currencyName, formatMoney, parseMoney, toDecimalText } from '../../lib/currency';
+import { SUPPORTED_CURRENCIES, formatMoney, parseMoney, toDecimalText } from '../../lib/currency';
 import { parsePercent, percentText } from './percent';
-import { CHOICE, Field, WithUnit, flattenErrors, safeMinorUnits } from './form-fields';
+import { CHOICE, Field, PackageTermsFields, flattenErrors } from './form-fields';
 import { TAX_CAUTION } from './NewShootForm';
 
 interface Props {
@@ -143,7 +143,6 @@ export default function ShootDetailsForm({ shootId, initial, savedFields }: Prop
   } = useForm<FormValues>({ resolver, mode: 'onTouched', defaultValues: valuesOf(initial) });
   const currency = watch('currency');
   const passcodeChoice = watch('passcodeChoice');
-  const digits = safeMinorUnits(currency);
 
   async function submit(values: FormValues) {
     setServerError(null);
@@ -305,49 +304,7 @@ export default function ShootDetailsForm({ shootId, initial, savedFields }: Prop
           </>
         ) : (
           <>
-            <div className="mt-4 grid gap-4 sm:grid-cols-3">
-              <Field {...fieldProps('allowance')} label="Retouches included" hint="The allowance: picks up to this number cost nothing extra.">
-                <input className="field" inputMode="numeric" {...input('allowance', true)} />
-              </Field>
-              <Field
-                {...fieldProps('extraPrice')}
-                label="Price per extra retouch"
-                hint={digits === 0 ? `In whole ${currency}, e.g. 3000.` : `In ${currency}, e.g. 25.${'0'.repeat(digits)}.`}
-              >
-                <WithUnit unit={currency}>
-                  <input className="field rounded-r-none" inputMode="decimal" {...input('extraPrice', true)} />
-                </WithUnit>
-              </Field>
-              <Field {...fieldProps('currency')} label="Currency">
-                <select className="field" {...input('currency')}>
-                  {currencies.map((c) => (
-                    <option key={c} value={c}>
-                      {c} — {safeCurrencyName(c)}
-                    </option>
-                  ))}
-                </select>
-              </Field>
-            </div>
-            <div className="mt-4 grid gap-4 sm:grid-cols-3">
-              <Field {...fieldProps('taxRate')} label="Tax rate" hint="In percent, e.g. 20; 0 when you charge no tax.">
-                <WithUnit unit="%">
-                  <input className="field rounded-r-none" inputMode="decimal" {...input('taxRate', true)} />
-                </WithUnit>
-              </Field>
-              <div className="sm:col-span-2">
-                <span className="label" id={`${ids}-taxMode-label`}>
-                  Your prices
-                </span>
-                <div className="flex flex-wrap gap-2" role="radiogroup" aria-labelledby={`${ids}-taxMode-label`}>
-                  <label className={CHOICE}>
-                    <input type="radio" value="exclusive" {...register('taxMode')} /> exclude tax (added on top)
-                  </label>
-                  <label className={CHOICE}>
-                    <input type="radio" value="inclusive" {...register('taxMode')} /> include tax
-                  </label>
-                </div>
-              </div>
-            </div>
+            <PackageTermsFields ids={ids} currency={currency} currencies={currencies} input={input} fieldProps={fieldProps} taxModeProps={register('taxMode')} />
             <p className="mt-4 text-caption text-ink-faint">
               The terms can change until the client sends their picks or starts paying for extras.
             </p>
@@ -368,13 +325,6 @@ export default function ShootDetailsForm({ shootId, initial, savedFields }: Prop
   );
 }
 
-function safeCurrencyName(code: string) {
-  try {
-    return currencyName(code);
-  } catch {
-    return code;
-  }
-}
 
 /** The details as text, for a shoot that can no longer change. */
 function Summary({ details }: { details: ShootDetails }) {

@@ -1,6 +1,6 @@
 import type { ReactNode } from 'react';
 import type { FieldErrors } from 'react-hook-form';
-import { minorUnits } from '../../lib/currency';
+import { currencyName, minorUnits } from '../../lib/currency';
 
 /** A radio choice drawn as a chip, with the focus ring on the chip when the radio has keyboard focus. */
 export const CHOICE =
@@ -58,5 +58,74 @@ export function safeMinorUnits(currency: string): number {
     return minorUnits(currency);
   } catch {
     return 2;
+  }
+}
+
+type TermsField = 'allowance' | 'extraPrice' | 'currency' | 'taxRate';
+
+/**
+ * The package terms as the new-shoot and Details forms both ask for them: retouches included, price
+ * per extra retouch, currency, tax rate and whether prices include tax. Each form passes its own
+ * field wiring (`input`, `fieldProps`) and the tax-mode radio's registration.
+ */
+export function PackageTermsFields({ ids, currency, currencies, input, fieldProps, taxModeProps }: {
+  ids: string;
+  currency: string;
+  currencies: readonly string[];
+  input: (name: TermsField, hint?: boolean) => object;
+  fieldProps: (name: TermsField) => { id: string; error?: string };
+  taxModeProps: object;
+}) {
+  const digits = safeMinorUnits(currency);
+  return (
+    <>
+      <div className="mt-4 grid gap-4 sm:grid-cols-3">
+        <Field {...fieldProps('allowance')} label="Retouches included" hint="The allowance: picks up to this number cost nothing extra.">
+          <input className="field" inputMode="numeric" {...input('allowance', true)} />
+        </Field>
+        <Field {...fieldProps('extraPrice')} label="Price per extra retouch" hint={digits === 0 ? `In whole ${currency}, e.g. 3000.` : `In ${currency}, e.g. 25.${'0'.repeat(digits)}.`}>
+          <WithUnit unit={currency}>
+            <input className="field rounded-r-none" inputMode="decimal" {...input('extraPrice', true)} />
+          </WithUnit>
+        </Field>
+        <Field {...fieldProps('currency')} label="Currency">
+          <select className="field" {...input('currency')}>
+            {currencies.map((c) => (
+              <option key={c} value={c}>
+                {c} — {safeCurrencyName(c)}
+              </option>
+            ))}
+          </select>
+        </Field>
+      </div>
+      <div className="mt-4 grid gap-4 sm:grid-cols-3">
+        <Field {...fieldProps('taxRate')} label="Tax rate" hint="In percent, e.g. 20; 0 when you charge no tax.">
+          <WithUnit unit="%">
+            <input className="field rounded-r-none" inputMode="decimal" {...input('taxRate', true)} />
+          </WithUnit>
+        </Field>
+        <div className="sm:col-span-2">
+          <span className="label" id={`${ids}-taxMode-label`}>
+            Your prices
+          </span>
+          <div className="flex flex-wrap gap-2" role="radiogroup" aria-labelledby={`${ids}-taxMode-label`}>
+            <label className={CHOICE}>
+              <input type="radio" value="exclusive" {...taxModeProps} /> exclude tax (added on top)
+            </label>
+            <label className={CHOICE}>
+              <input type="radio" value="inclusive" {...taxModeProps} /> include tax
+            </label>
+          </div>
+        </div>
+      </div>
+    </>
+  );
+}
+
+function safeCurrencyName(code: string) {
+  try {
+    return currencyName(code);
+  } catch {
+    return code;
   }
 }
