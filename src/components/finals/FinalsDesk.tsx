@@ -111,8 +111,8 @@ function Desk({ initial, limits, notice }: Props) {
         {data.can.upload && (data.stage !== 'delivered' || replacing) ? (
           <ShootUploader shootId={shootId} limits={uploadLimits} onActivity={setUploading} onRegistered={onRegistered} setup={setup} />
         ) : data.can.upload ? (
-          <section className="card flex flex-wrap items-center justify-between gap-3 p-4 sm:p-5" aria-label="Replace a delivered final">
-            <p className="min-w-0 flex-1 text-ink-soft">
+          <section className="card flex flex-col gap-3 p-4 sm:flex-row sm:items-center sm:justify-between sm:p-5" aria-label="Replace a delivered final">
+            <p className="min-w-0 flex-1 basis-64 text-ink-soft">
               Need to fix a delivered final? Upload a new version: the client sees it once it is ready, and the old one is removed.
             </p>
             <button type="button" className="btn-quiet" onClick={() => setReplacing(true)}>Upload a new version</button>

@@ -33,7 +33,7 @@ export default function FinalsGallery({ initial }: { initial: GalleryFinalsData 
           Downloads close on <strong className="text-ink">{day(data.downloadUntil)}</strong>: save copies of your own before then.
         </p>
         <div className="mt-4 grid gap-3 sm:grid-cols-2">
-          <a className="btn bg-brand text-white no-underline hover:opacity-90" href={data.zip.finalsUrl} download={data.zip.finalsName} data-testid="download-all">
+          <a className="btn-brand" href={data.zip.finalsUrl} download={data.zip.finalsName} data-testid="download-all">
             Download all {n === 1 ? 'the photo' : `${n} photos`} (ZIP, {formatBytes(data.zip.finalsBytes)})
           </a>
           <a className="btn-quiet" href={data.zip.cropsUrl} download={data.zip.cropsName} data-testid="download-crops">
@@ -64,7 +64,7 @@ function FinalCard({ final: f }: { final: GalleryFinal }) {
           <p className="font-semibold">Photo {String(f.number).padStart(2, '0')}</p>
           <p className="text-caption text-ink-faint">{f.width} × {f.height} px · {formatBytes(f.bytes)}</p>
         </div>
-        <a className="btn-primary mt-3 w-full" href={f.downloadUrl} download={f.fileName} data-testid="download-final">
+        <a className="btn-brand mt-3 w-full" href={f.downloadUrl} download={f.fileName} data-testid="download-final">
           Download
         </a>
         {f.crops.length ? (

@@ -143,7 +143,7 @@ export default function HandOffPanel({ data, onChanged, idSuffix = '' }: { data:
               <p className="mt-1 text-caption">The rest appear for the client when they are ready.</p>
               <div className="mt-2 flex flex-wrap gap-2">
                 <button type="button" className="btn-accent" disabled={busy} onClick={() => doHandOff(true)}>Hand off anyway</button>
-                <button type="button" className="btn-quiet" onClick={() => setConfirm(null)}>Not yet</button>
+                <button type="button" className="btn-quiet" onClick={() => { setConfirm(null); setAsking(false); }}>Not yet</button>
               </div>
             </div>
           ) : asking ? (

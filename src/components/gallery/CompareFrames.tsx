@@ -48,10 +48,10 @@ export default function CompareFrames({ pair, picks, canPick, onKeep, onClose }:
                       ref={i === 0 ? firstAction : undefined}
                       type="button"
                       onClick={() => onKeep(frame, other)}
-                      className="btn !min-h-[44px] bg-brand text-white"
+                      className="btn-brand !min-h-[44px]"
                     >
-                      <PickMark picked={picks.has(frame.id)} />
-                      Pick this one
+                      <PickMark picked={picked} />
+                      {picked ? 'Keep this one' : 'Pick this one'}
                     </button>
                   ) : null}
                 </figcaption>

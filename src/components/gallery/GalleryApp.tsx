@@ -90,7 +90,7 @@ function Gallery({ initial }: Props) {
         {comparing ? (
           <span className="flex flex-wrap items-center gap-2">
             <span className="text-caption text-ink-soft" aria-live="polite">{chosen.length === 2 ? 'Two frames chosen.' : `Choose ${2 - chosen.length} more ${chosen.length === 1 ? 'frame' : 'frames'}.`}</span>
-            <button type="button" className="btn-primary !min-h-[44px] !py-1.5" disabled={!pair} onClick={() => setPairOpen(true)}>Compare</button>
+            <button type="button" className="btn-brand !min-h-[44px] !py-1.5" disabled={!pair} onClick={() => setPairOpen(true)}>Compare</button>
           </span>
         ) : null}
       </div>
@@ -133,7 +133,7 @@ function Gallery({ initial }: Props) {
         ) : null}
         <div className="flex items-center justify-between gap-3">
           <PickTally picked={picks.size} terms={data.terms} compact paid={data.extrasPaid} />
-          <a href={`/gallery/${shootId}/review`} className="btn flex-none text-white no-underline hover:opacity-90 bg-brand">
+          <a href={`/gallery/${shootId}/review`} className="btn-brand flex-none">
             {data.submittedAt ? 'Your picks' : 'Review & send'}
           </a>
         </div>

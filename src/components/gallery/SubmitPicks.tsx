@@ -64,13 +64,13 @@ export default function SubmitPicks({ shootId, studioName, picked, extras, total
       {state.kind === 'error' ? <p className="notice-error mb-3" role="alert">{state.message}</p> : null}
       {state.kind === 'sent' ? null : submitted ? (
         awaitingPayment && state.kind !== 'no-payment' ? (
-          <button type="button" onClick={pay} disabled={working} className="btn w-full text-lead text-white sm:w-auto bg-brand">
+          <button type="button" onClick={pay} disabled={working} className="btn-brand w-full text-lead sm:w-auto">
             Pay {totalText} for {extras} extra {extras === 1 ? 'retouch' : 'retouches'}
           </button>
         ) : null
       ) : (
         <>
-          <button type="button" onClick={send} disabled={working || picked === 0} className="btn w-full text-lead text-white sm:w-auto bg-brand">
+          <button type="button" onClick={send} disabled={working || picked === 0} className="btn-brand w-full text-lead sm:w-auto">
             {extras > 0 ? `Send my picks and pay ${totalText}` : `Send my ${picked} ${picked === 1 ? 'pick' : 'picks'} to ${studioName}`}
           </button>
           <p className="mt-2 text-caption text-ink-faint">

@@ -513,7 +513,8 @@ export default function LightNotesEditor({ shootId, initial, cameraFromExif, can
           </Card>
 
           <Card title="Key and fill">
-            <div className="grid grid-cols-2 gap-3">
+            {/* One column on a narrow phone: the choices are light names and need the width. */}
+            <div className="grid grid-cols-1 gap-3 min-[420px]:grid-cols-2">
               <SelectField
                 label="Key"
                 value={notes.keyId ?? ''}

@@ -126,7 +126,7 @@ export default function FramePanel({ frames, index, canEdit, onClose, onNavigate
                 <FocusEditor frame={frame} focus={focus} editable={editable} onMove={setPending} />
                 {/* The proof carries the watermark; focus is judged on the original, at full size. */}
                 {/\.(jpe?g|png|webp)$/i.test(frame.name) ? (
-                  <a className="text-caption" href={`/api/frames/${frame.id}/original?view=1`} target="_blank" rel="noopener">
+                  <a className="btn-quiet" href={`/api/frames/${frame.id}/original?view=1`} target="_blank" rel="noopener">
                     Open the original at full size (new tab)
                   </a>
                 ) : null}

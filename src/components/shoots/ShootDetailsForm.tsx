@@ -1,4 +1,4 @@
-import { useId, useRef, useState } from 'react';
+import { useEffect, useId, useRef, useState } from 'react';
 import { useForm, type FieldErrors, type Resolver } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { shootDetailsSchema, TERMS_FIELDS, type ShootDetails, type ShootDetailsResult } from '../../lib/schemas/shoot';
@@ -120,6 +120,11 @@ export default function ShootDetailsForm({ shootId, initial, savedFields }: Prop
   const [details, setDetails] = useState(initial);
   const [serverError, setServerError] = useState<string | null>(null);
   const [status, setStatus] = useState<string | null>(savedFields?.length ? savedWords(savedFields) : null);
+  const statusRef = useRef<HTMLParagraphElement>(null);
+  // Loaded again after a save: bring the "Saved" line into view, since the page starts at the top.
+  useEffect(() => {
+    if (savedFields?.length) statusRef.current?.scrollIntoView({ block: 'center' });
+  }, [savedFields]);
 
   // The shared schema decides; this only reads typed money and per cent first and puts each message on its field.
   const resolver = useRef<Resolver<FormValues>>(async (values, context, options) => {
@@ -314,7 +319,7 @@ export default function ShootDetailsForm({ shootId, initial, savedFields }: Prop
       </fieldset>
 
       <div className="flex flex-wrap items-center justify-end gap-3">
-        <p role="status" className={status ? 'notice-ok mr-auto' : 'sr-only'} data-testid="details-status">
+        <p ref={statusRef} role="status" className={status ? 'notice-ok mr-auto' : 'sr-only'} data-testid="details-status">
           {status ?? ''}
         </p>
         <button type="submit" className="btn-accent" disabled={isSubmitting}>

@@ -433,7 +433,7 @@ export async function handOff(member: SessionMember, shootId: string, partial: b
     const missing = c.picks - c.ready;
     if (missing > 0 && !partial) {
       throw new NeedsConfirmation(
-        `${missing} of ${c.picks} ${c.picks === 1 ? 'pick has' : 'picks have'} no ready final yet. Hand off the ${c.ready} that are ready anyway?`,
+        `${missing} of ${c.picks} ${c.picks === 1 ? 'pick' : 'picks'} ${missing === 1 ? 'has' : 'have'} no ready final yet. Hand off the ${c.ready} that ${c.ready === 1 ? 'is' : 'are'} ready anyway?`,
         { missing, picks: c.picks, ready: c.ready },
       );
     }
