@@ -4,7 +4,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { newShootSchema, type NewShootInput } from '../../lib/schemas/shoot';
 import { SUPPORTED_CURRENCIES, parseMoney, toDecimalText } from '../../lib/currency';
 import { parsePercent, percentText } from './percent';
-import { CHOICE, Field, PackageTermsFields, flattenErrors } from './form-fields';
+import { CHOICE, Field, PackageTermsFields, fieldWiring, flattenErrors, placeServerIssues } from './form-fields';
 
 export interface ClientChoice {
   id: string;
@@ -160,26 +160,11 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
       setServerError('Your session has ended. Sign in again in another tab, then create the shoot; your entries stay here.');
       return;
     }
-    let placed = false;
-    for (const issue of data.issues ?? []) {
-      const field = FIELD_FOR_PATH[issue.path.join('.')] ?? FIELD_FOR_PATH[String(issue.path[0])];
-      if (field) {
-        setError(field, { type: 'server', message: issue.message }, { shouldFocus: !placed });
-        placed = true;
-      }
-    }
+    placeServerIssues(data.issues, FIELD_FOR_PATH, setError);
     setServerError(data.error ?? `The shoot could not be created (error ${res.status}). Please try again.`);
   }
 
-  const describedBy = (name: FieldName, hint?: boolean) =>
-    [errors[name] ? `${ids}-${name}-error` : null, hint ? `${ids}-${name}-hint` : null].filter(Boolean).join(' ') || undefined;
-  const input = (name: FieldName, hint = false) => ({
-    id: `${ids}-${name}`,
-    'aria-invalid': errors[name] ? true : undefined,
-    'aria-describedby': describedBy(name, hint),
-    ...register(name),
-  });
-  const fieldProps = (name: FieldName) => ({ id: `${ids}-${name}`, error: errors[name]?.message });
+  const { input, fieldProps } = fieldWiring<FieldName>(ids, errors, (name) => register(name));
 
   return (
     <form onSubmit={handleSubmit(submit)} noValidate className="space-y-6" aria-describedby={serverError ? `${ids}-server` : undefined}>

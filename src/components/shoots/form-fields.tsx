@@ -129,3 +129,39 @@ function safeCurrencyName(code: string) {
     return code;
   }
 }
+
+/**
+ * How a form's fields are wired: each control gets its id, `aria-invalid` and the ids of its hint and
+ * error (`input`), and each `Field` its id and message (`fieldProps`).
+ */
+export function fieldWiring<N extends string>(ids: string, errors: Partial<Record<N, { message?: unknown }>>, register: (name: N) => object) {
+  const describedBy = (name: N, hint: boolean) =>
+    [errors[name] ? `${ids}-${name}-error` : null, hint ? `${ids}-${name}-hint` : null].filter(Boolean).join(' ') || undefined;
+  const input = (name: N, hint = false) => ({
+    id: `${ids}-${name}`,
+    'aria-invalid': errors[name] ? true : undefined,
+    'aria-describedby': describedBy(name, hint),
+    ...register(name),
+  });
+  const fieldProps = (name: N) => {
+    const message = errors[name]?.message;
+    return { id: `${ids}-${name}`, error: typeof message === 'string' ? message : undefined };
+  };
+  return { input, fieldProps };
+}
+
+/** Puts each of the server's field issues on its field, focusing the first one placed. */
+export function placeServerIssues<N extends string>(
+  issues: { path: (string | number)[]; message: string }[] | undefined,
+  fieldForPath: Partial<Record<string, N>>,
+  setError: (name: N, error: { type: string; message: string }, options: { shouldFocus: boolean }) => void,
+): void {
+  let placed = false;
+  for (const issue of issues ?? []) {
+    const field = fieldForPath[issue.path.join('.')] ?? fieldForPath[String(issue.path[0])];
+    if (field) {
+      setError(field, { type: 'server', message: issue.message }, { shouldFocus: !placed });
+      placed = true;
+    }
+  }
+}
