@@ -4,7 +4,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { newShootSchema, type NewShootInput } from '../../lib/schemas/shoot';
 import { SUPPORTED_CURRENCIES, parseMoney, toDecimalText } from '../../lib/currency';
 import { parsePercent, percentText } from './percent';
-import { CHOICE, Field, PackageTermsFields, fieldWiring, flattenErrors, placeServerIssues } from './form-fields';
+import { CHOICE, Field, FormSection, PackageTermsFields, fieldWiring, flattenErrors, placeServerIssues } from './form-fields';
 
 export interface ClientChoice {
   id: string;
@@ -174,9 +174,7 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
         </p>
       ) : null}
 
-      <fieldset className="card p-5 sm:p-6">
-        <legend className="sr-only">Client</legend>
-        <h2 className="text-title">Client</h2>
+      <FormSection title="Client">
         <div className="mt-3 flex flex-wrap gap-2" role="radiogroup" aria-label="Client">
           {clients.length ? (
             <label className={CHOICE}>
@@ -211,11 +209,9 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
         <p className="mt-4 text-caption text-ink-faint">
           Photos of people are personal data. Consent, and model releases for minors, follow your local law.
         </p>
-      </fieldset>
+      </FormSection>
 
-      <fieldset className="card p-5 sm:p-6">
-        <legend className="sr-only">Sitting</legend>
-        <h2 className="text-title">Sitting</h2>
+      <FormSection title="Sitting">
         <div className="mt-4 grid gap-4 sm:grid-cols-[2fr_1fr]">
           <Field {...fieldProps('title')} label="Title">
             <input className="field" maxLength={160} placeholder="Family portraits, spring" {...input('title')} />
@@ -224,18 +220,14 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
             <input className="field" type="date" {...input('shotOn')} />
           </Field>
         </div>
-      </fieldset>
+      </FormSection>
 
-      <fieldset className="card p-5 sm:p-6">
-        <legend className="sr-only">Package</legend>
-        <h2 className="text-title">Package</h2>
+      <FormSection title="Package">
         <PackageTermsFields ids={ids} currency={currency} currencies={SUPPORTED_CURRENCIES} input={input} fieldProps={fieldProps} taxModeProps={register('taxMode')} />
         <p className="notice-caution mt-4 text-caption">{TAX_CAUTION}</p>
-      </fieldset>
+      </FormSection>
 
-      <fieldset className="card p-5 sm:p-6">
-        <legend className="sr-only">Proofs</legend>
-        <h2 className="text-title">Proofs</h2>
+      <FormSection title="Proofs">
         <div className="mt-4 grid gap-4 sm:grid-cols-2">
           <Field {...fieldProps('proofExpiresOn')} label="Proofs close after" hint="The client can pick until the end of this day (UTC).">
             <input className="field" type="date" {...input('proofExpiresOn', true)} />
@@ -244,7 +236,7 @@ export default function NewShootForm({ clients, defaults, clientId }: Props) {
             <input className="field" autoComplete="off" maxLength={64} {...input('passcode', true)} />
           </Field>
         </div>
-      </fieldset>
+      </FormSection>
 
       <div className="flex flex-wrap items-center justify-end gap-3">
         <a href="/desk" className="btn-quiet">

@@ -4,7 +4,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { shootDetailsSchema, TERMS_FIELDS, type ShootDetails, type ShootDetailsResult } from '../../lib/schemas/shoot';
 import { SUPPORTED_CURRENCIES, formatMoney, parseMoney, toDecimalText } from '../../lib/currency';
 import { parsePercent, percentText } from './percent';
-import { CHOICE, Field, PackageTermsFields, fieldWiring, flattenErrors, placeServerIssues } from './form-fields';
+import { CHOICE, Field, FormSection, PackageTermsFields, fieldWiring, flattenErrors, placeServerIssues } from './form-fields';
 import { TAX_CAUTION } from './NewShootForm';
 
 interface Props {
@@ -207,9 +207,7 @@ export default function ShootDetailsForm({ shootId, initial, savedFields }: Prop
         </p>
       ) : null}
 
-      <fieldset className="card p-5 sm:p-6">
-        <legend className="sr-only">Sitting</legend>
-        <h2 className="text-title">Sitting</h2>
+      <FormSection title="Sitting">
         <div className="mt-4 grid gap-4 sm:grid-cols-[2fr_1fr]">
           <Field {...fieldProps('title')} label="Title">
             <input className="field" maxLength={160} autoComplete="off" {...input('title')} />
@@ -218,11 +216,9 @@ export default function ShootDetailsForm({ shootId, initial, savedFields }: Prop
             <input className="field" type="date" {...input('shotOn')} />
           </Field>
         </div>
-      </fieldset>
+      </FormSection>
 
-      <fieldset className="card p-5 sm:p-6">
-        <legend className="sr-only">Proofs</legend>
-        <h2 className="text-title">Proofs</h2>
+      <FormSection title="Proofs">
         {details.proofsClosed && details.stage !== 'delivered' ? (
           <p className="notice-caution mt-3" data-testid="proofs-closed">
             The proofs closed on {day(details.proofExpiresOn)}. Choose today or a later day to open the gallery to the client again.
@@ -237,11 +233,9 @@ export default function ShootDetailsForm({ shootId, initial, savedFields }: Prop
             <input className="field" type="date" {...input('proofExpiresOn', true)} />
           </Field>
         </div>
-      </fieldset>
+      </FormSection>
 
-      <fieldset className="card p-5 sm:p-6">
-        <legend className="sr-only">Passcode</legend>
-        <h2 className="text-title">Passcode</h2>
+      <FormSection title="Passcode">
         <p className="mt-1 text-ink-soft" data-testid="passcode-state">
           {details.hasPasscode ? 'A passcode is asked for when the viewing link is opened.' : 'No passcode: anyone with the viewing link can open the gallery.'}
         </p>
@@ -271,11 +265,9 @@ export default function ShootDetailsForm({ shootId, initial, savedFields }: Prop
         {passcodeChoice === 'remove' ? (
           <p className="notice-caution mt-4 text-caption">Without a passcode, anyone who has the viewing link can see the proofs.</p>
         ) : null}
-      </fieldset>
+      </FormSection>
 
-      <fieldset className="card p-5 sm:p-6">
-        <legend className="sr-only">Package</legend>
-        <h2 className="text-title">Package</h2>
+      <FormSection title="Package">
         {details.termsLocked ? (
           <>
             <p className="notice-caution mt-3" data-testid="terms-locked">
@@ -301,7 +293,7 @@ export default function ShootDetailsForm({ shootId, initial, savedFields }: Prop
             <p className="notice-caution mt-2 text-caption">{TAX_CAUTION}</p>
           </>
         )}
-      </fieldset>
+      </FormSection>
 
       <div className="flex flex-wrap items-center justify-end gap-3">
         <p ref={statusRef} role="status" className={status ? 'notice-ok mr-auto' : 'sr-only'} data-testid="details-status">

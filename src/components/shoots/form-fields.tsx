@@ -6,6 +6,17 @@ import { currencyName, minorUnits } from '../../lib/currency';
 export const CHOICE =
   'inline-flex min-h-[44px] cursor-pointer items-center gap-2 rounded-card border border-paper-edge bg-white px-3 py-2 has-[:checked]:border-clay has-[:checked]:bg-clay-light/30 has-[:focus-visible]:outline has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-clay';
 
+/** One card of a form: a fieldset whose legend (for screen readers) is also its visible heading. */
+export function FormSection({ title, children }: { title: string; children: ReactNode }) {
+  return (
+    <fieldset className="card p-5 sm:p-6">
+      <legend className="sr-only">{title}</legend>
+      <h2 className="text-title">{title}</h2>
+      {children}
+    </fieldset>
+  );
+}
+
 /** One labelled field: its control, an optional hint and the error, tied together by ids for screen readers. */
 export function Field({ id, label, hint, error, className, children }: { id: string; label: string; hint?: ReactNode; error?: string; className?: string; children: ReactNode }) {
   return (
